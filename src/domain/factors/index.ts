@@ -1,0 +1,4 @@
+export * from './types';
+export * from './coding';
+export * from './validate';
+export * from './model-terms';
