@@ -1,0 +1,8 @@
+/** The design engine: classical constructions, randomisation, diagnostics and next-run choice. */
+export * from './types';
+export { generateDesign, defaultModel, DEFAULT_SEED } from './generate';
+export { nextRunByPredictionVariance, resolveTerms, candidateSet, type NextRunOptions, type NextRunByVariance } from './prediction-variance';
+export { fullFactorialDesign, centreRuns } from './full-factorial';
+export { centralCompositeDesign, rotatableAlpha, orthogonalAlpha, DEFAULT_CCD_CENTRE_RUNS } from './central-composite';
+export { randomiseRunOrder } from './randomise';
+export { designDiagnostics, assertEstimable } from './diagnostics';

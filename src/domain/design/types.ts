@@ -1,0 +1,98 @@
+/** Shapes shared by every design construction: the request, the runs and the diagnostics. */
+import type { DisallowedCombination, Factor, LinearConstraint, Point, StandardModel } from '../factors';
+
+export type DesignMethod =
+  | 'full-factorial'
+  | 'fractional-factorial'
+  | 'plackett-burman'
+  | 'definitive-screening'
+  | 'central-composite'
+  | 'box-behnken'
+  | 'latin-hypercube'
+  | 'sobol'
+  | 'optimal';
+
+export const DESIGN_METHODS: readonly DesignMethod[] = [
+  'full-factorial',
+  'fractional-factorial',
+  'plackett-burman',
+  'definitive-screening',
+  'central-composite',
+  'box-behnken',
+  'latin-hypercube',
+  'sobol',
+  'optimal',
+];
+
+export type AxialDistance = 'rotatable' | 'orthogonal' | 'face-centred' | number;
+
+export interface DesignSpec {
+  factors: Factor[];
+  method: DesignMethod;
+  /** Number of new runs (optimal, space-filling and Plackett–Burman designs). */
+  runs?: number;
+  /** Model the design must support; also the model of the diagnostics. Default depends on the method. */
+  model?: StandardModel;
+  criterion?: 'D' | 'I';
+  resolution?: number;
+  /** Generators of a two-level fraction, e.g. ["E=ABCD"] with factors lettered A, B, C ... in order. */
+  generators?: string[];
+  centerPoints?: number;
+  alpha?: AxialDistance;
+  replicates?: number;
+  blocks?: number;
+  wholePlots?: number;
+  constraints?: LinearConstraint[];
+  disallowed?: DisallowedCombination[];
+  /** Runs already made (or already planned): they come first, flagged `existing`, and are never moved. */
+  existingRuns?: Point[];
+  seed?: number;
+}
+
+export interface DesignRun {
+  /** 1-based run order after randomisation (existing runs first). */
+  order: number;
+  /** Natural units (categorical levels as their labels). */
+  values: Point;
+  /** Coded per codePoint: numeric factors in [-1, 1] (axial points beyond), categorical as level index. */
+  coded: number[];
+  block?: number;
+  wholePlot?: number;
+  existing?: boolean;
+}
+
+export interface DesignDiagnostics {
+  /** Number of runs, including existing ones. */
+  runs: number;
+  /** Number of model-matrix columns (parameters), intercept included. */
+  parameters: number;
+  /** Column rank of the model matrix (equals `parameters`: a singular design is refused). */
+  rank: number;
+  /** Model-matrix column labels. */
+  columns: string[];
+  /** |X'X / n|^(1/p): 1 for an orthogonal two-level design of the main-effects or interactions model. */
+  dEfficiency: number;
+  /** p / trace((X'X / n)^-1). */
+  aEfficiency: number;
+  /** Degrees of freedom left for error: runs − parameters. */
+  errorDegreesOfFreedom: number;
+  /** Plain-language remarks (e.g. axial points beyond the factor range). */
+  notes: string[];
+}
+
+export interface DesignResult {
+  runs: DesignRun[];
+  diagnostics: DesignDiagnostics;
+  method: string;
+  model: StandardModel;
+  terms: string[];
+  /** The seed the run order came from (default 1 when none was given). */
+  seed: number;
+}
+
+/** A run under construction: coded coordinates plus its grouping, before randomisation. */
+export interface CodedRun {
+  coded: number[];
+  block?: number;
+  wholePlot?: number;
+}
