@@ -1,0 +1,169 @@
+/**
+ * planSchedule: a campaign's runs onto rigs and times. This file holds the sequential fill and the
+ * assembly of the answer (assignments, activities, counts, bounds, what did not fit and why).
+ */
+import { changeoverLowerBound, makespanLowerBound } from './bounds';
+import { MINUTE, prepare, type Prepared, type Unit } from './prepare';
+import { emptyRigState, placeUnit, type RigState } from './rig-timeline';
+import type { Infeasibility, LevelValue, RigActivity, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
+
+/** Outcome of a strategy: one timeline per rig and the units that found no place. */
+export interface RigPlan {
+  states: RigState[];
+  unplaced: Unit[];
+  notes: string[];
+}
+
+/**
+ * Sequential fill: whole plots (and loose runs) in design order, each onto the rig where it would
+ * finish first (list scheduling; ties go to fewer changeover minutes, then to the earlier rig).
+ */
+export function sequentialFill(p: Prepared, units: readonly Unit[] = p.units, initial?: RigState[]): RigPlan {
+  const states = initial ?? p.rigs.map(emptyRigState);
+  const unplaced: Unit[] = [];
+  for (const unit of units) {
+    let best: { state: RigState; rig: number; end: number } | undefined;
+    for (let r = 0; r < states.length; r++) {
+      const next = placeUnit(states[r]!, unit, p);
+      if (!next) continue;
+      const end = next.lastEnd;
+      if (!best || end < best.end) best = { state: next, rig: r, end };
+    }
+    if (best) states[best.rig] = best.state;
+    else unplaced.push(unit);
+  }
+  return { states, unplaced, notes: [] };
+}
+
+function minutes(ms: number): number {
+  return Math.round((ms / MINUTE) * 1000) / 1000;
+}
+
+function hours(ms: number): string {
+  return `${(ms / 3_600_000).toFixed(1)} h`;
+}
+
+/** Say which constraint keeps each unplaced unit out, and by how much. */
+export function explainUnplaced(p: Prepared, plan: RigPlan): { unscheduled: Unscheduled[]; infeasibility: Infeasibility[] } {
+  const unscheduled: Unscheduled[] = [];
+  const infeasibility: Infeasibility[] = [];
+  if (plan.unplaced.length === 0) return { unscheduled, infeasibility };
+
+  const required = p.units.reduce((s, u) => s + u.workMs, 0);
+  const available = p.rigs.reduce((s, r) => s + r.capacityMs, 0);
+  if (required > available) {
+    infeasibility.push({
+      constraint: 'rig_hours',
+      message: `the runs need ${hours(required)} of trial time but the rigs offer ${hours(available)}: short by ${hours(required - available)} before any changeover or upkeep`,
+      requiredMinutes: minutes(required),
+      availableMinutes: minutes(available),
+      shortByMinutes: minutes(required - available),
+    });
+  }
+  const longestInterval = Math.max(0, ...p.rigs.flatMap((r) => r.intervals.map((i) => i.end - i.start)));
+  const usedByRig = plan.states.map((s) => s.placements.reduce((a, x) => a + (x.end - x.start), 0));
+  const freeMs = p.rigs.reduce((s, r, i) => s + r.capacityMs - usedByRig[i]!, 0);
+  const unplacedMs = plan.unplaced.reduce((s, u) => s + u.workMs, 0);
+  let reportedFragmentation = false;
+  for (const unit of plan.unplaced) {
+    const longestRun = Math.max(...unit.runs.map((r) => r.durationMs));
+    let reason: string;
+    if (longestRun > longestInterval) {
+      reason = `a trial of ${minutes(longestRun)} min needs one unbroken stretch, but the longest available interval is ${minutes(longestInterval)} min`;
+      infeasibility.push({
+        constraint: 'interval_length',
+        message: `${unit.label}: ${reason}`,
+        requiredMinutes: minutes(longestRun),
+        availableMinutes: minutes(longestInterval),
+        shortByMinutes: minutes(longestRun - longestInterval),
+      });
+    } else if (unit.window) {
+      reason = `block ${unit.window.block} is pinned to ${unit.window.day} and its ${minutes(unit.workMs)} min no longer fit on any rig that day`;
+      infeasibility.push({ constraint: 'block_day', message: `${unit.label}: ${reason}`, requiredMinutes: minutes(unit.workMs) });
+    } else if (required > available) {
+      reason = `not enough rig time: the work exceeds the rigs' hours by ${hours(required - available)}`;
+    } else {
+      reason = `no rig has ${minutes(unit.workMs)} min left after the work already placed (with changeovers and upkeep)`;
+      if (!reportedFragmentation) {
+        reportedFragmentation = true;
+        infeasibility.push({
+          constraint: 'fragmentation',
+          message: `${minutes(unplacedMs)} min of work did not fit: ${minutes(freeMs)} min of rig time is left but split into pieces too short or taken by changeovers, upkeep and cool-down`,
+          requiredMinutes: minutes(unplacedMs),
+          availableMinutes: minutes(freeMs),
+          shortByMinutes: minutes(Math.max(0, unplacedMs - freeMs)),
+        });
+      }
+    }
+    for (const r of unit.runs) unscheduled.push({ runId: r.id, reason: `${unit.label}: ${reason}` });
+  }
+  return { unscheduled, infeasibility };
+}
+
+function levelOf(p: Prepared, runIndex: number, factor: string): LevelValue {
+  return p.runs[runIndex]!.run.values[factor]!;
+}
+
+/** Turn rig timelines into the public answer. */
+export function assembleResult(p: Prepared, plan: RigPlan): ScheduleResult {
+  const placements = plan.states.flatMap((s) => s.placements);
+  placements.sort((a, b) => a.start - b.start || a.rig - b.rig);
+  const iso = (ms: number) => new Date(ms).toISOString();
+  const assignments = placements.map((x) => ({ runId: x.run.id, rig: p.rigs[x.rig]!.name, start: iso(x.start), end: iso(x.end) }));
+
+  // Previous run on the same rig, to report changeover levels "from → to".
+  const previousOnRig = new Map<string, number>();
+  for (const s of plan.states) s.placements.forEach((x, i) => i > 0 && previousOnRig.set(x.run.id, s.placements[i - 1]!.run.index));
+
+  const activities: RigActivity[] = [];
+  let changeovers = 0;
+  let changeoverMs = 0;
+  for (const x of placements) {
+    changeovers += x.changes;
+    for (const a of x.activities) {
+      const activity: RigActivity = { rig: p.rigs[x.rig]!.name, kind: a.kind, start: iso(a.start), end: iso(a.end), beforeRunId: x.run.id };
+      if (a.kind === 'changeover') {
+        changeoverMs += a.end - a.start;
+        const prev = previousOnRig.get(x.run.id)!;
+        activity.changes = (a.factors ?? []).map((k) => {
+          const name = p.changeoverFactors[k]!.name;
+          return { factor: name, from: levelOf(p, prev, name), to: levelOf(p, x.run.index, name) };
+        });
+      }
+      activities.push(activity);
+    }
+  }
+  const lastEnd = placements.reduce((m, x) => Math.max(m, x.end), -Infinity);
+  const makespanMinutes = placements.length ? minutes(lastEnd - p.originMs) : 0;
+
+  const placedKeys = new Set(placements.map((x) => x.run.id));
+  const placedUnits = p.units.filter((u) => u.runs.every((r) => placedKeys.has(r.id)));
+  const lowerBound = {
+    changeovers: changeoverLowerBound(p, placedUnits),
+    makespanMinutes: minutes(makespanLowerBound(p, placedUnits) * MINUTE),
+  };
+  const { unscheduled, infeasibility } = explainUnplaced(p, plan);
+  const result: ScheduleResult = {
+    assignments,
+    activities,
+    changeovers,
+    changeoverMinutesTotal: minutes(changeoverMs),
+    makespanMinutes,
+    lowerBound,
+    gap: {
+      changeovers: changeovers - lowerBound.changeovers,
+      makespanMinutes: minutes((makespanMinutes - lowerBound.makespanMinutes) * MINUTE),
+    },
+    unscheduled,
+    notes: plan.notes,
+  };
+  if (infeasibility.length) result.infeasibility = infeasibility;
+  return result;
+}
+
+/** Place a campaign's runs onto rigs. Pure: the same request gives the same schedule. */
+export function planSchedule(request: ScheduleRequest): ScheduleResult {
+  const p = prepare(request);
+  const plan = sequentialFill(p);
+  return assembleResult(p, plan);
+}
