@@ -1,0 +1,372 @@
+/**
+ * Linear least squares by Householder QR with column pivoting and rank detection; never the normal
+ * equations. Columns are scaled by powers of two (exact) before factorising, and the solution is
+ * improved by iterative refinement of the augmented system with residuals computed in about twice
+ * the working precision, which brings ill-conditioned polynomial fits to full accuracy.
+ */
+// Businger & Golub (1965), Numer. Math. 7:269-276 (Householder QR with column pivoting)
+// Björck (1967), BIT 7:257-278 (iterative refinement of linear least squares via the augmented system)
+import { dot2 } from './compensated';
+
+export interface LeastSquaresOptions {
+  /** A pivot |R_kk| at or below rankTolerance·|R_00| (on scaled columns) marks the rank. */
+  rankTolerance?: number;
+  /** Refinement steps for the coefficients (default 1, or 3 when ill-conditioned; 0 turns refinement off). */
+  refinementSteps?: number;
+  /**
+   * Refine the unscaled covariance (X'X)⁻¹ as well: 'auto' (default) does so when the scaled
+   * condition estimate exceeds 1e4, true always, false never.
+   */
+  refineCovariance?: boolean | 'auto';
+  /**
+   * Low-order parts of X (column-major, same shape), when X's entries are products that double
+   * precision rounds (e.g. x^10): X + xLow is then the matrix refinement solves for.
+   */
+  xLow?: Float64Array | null | (() => Float64Array | null);
+}
+
+/** Scaled condition estimate above which the covariance is refined and low-order parts are used. */
+const ILL_CONDITIONED = 1e4;
+
+export interface LeastSquaresFit {
+  n: number;
+  p: number;
+  rank: number;
+  /** Estimates for all p columns; NaN for aliased (inestimable) columns. */
+  coefficients: Float64Array;
+  /** Estimable columns (original indices, ascending) and aliased ones. */
+  basis: number[];
+  aliased: number[];
+  /** (X_bᵀX_b)⁻¹ over the basis columns, row-major rank × rank, in the order of `basis`. */
+  unscaledCovariance: Float64Array;
+  fitted: Float64Array;
+  residuals: Float64Array;
+  /** Σ residual², accumulated with compensation. */
+  residualSumOfSquares: number;
+  /** |R_00| / |R_rr| on scaled columns: a lower bound of the scaled condition number. */
+  conditionEstimate: number;
+}
+
+/** A Householder QR factorisation of a column-scaled, column-pivoted matrix (column-major). */
+export interface PivotedQr {
+  n: number;
+  p: number;
+  /** Householder vectors below the diagonal (with v_k[0] stored in `v0`), R above it. */
+  a: Float64Array;
+  v0: Float64Array;
+  beta: Float64Array;
+  diag: Float64Array;
+  /** pivot[k] = original column in position k. */
+  pivot: Int32Array;
+  /** Power-of-two scale of each original column. */
+  scale: Float64Array;
+  rank: number;
+}
+
+/** Column-major copy of a row-major n × p matrix. */
+export function toColumnMajor(rowMajor: ArrayLike<number>, n: number, p: number): Float64Array {
+  const out = new Float64Array(n * p);
+  for (let i = 0; i < n; i++) {
+    const r = i * p;
+    for (let j = 0; j < p; j++) out[j * n + i] = rowMajor[r + j]!;
+  }
+  return out;
+}
+
+function powerOfTwoNear(x: number): number {
+  if (!(x > 0) || !Number.isFinite(x)) return 1;
+  return Math.pow(2, Math.round(Math.log2(x)));
+}
+
+/** Householder QR with column pivoting of X (column-major n × p). X is not modified. */
+export function pivotedQr(x: Float64Array, n: number, p: number, rankTolerance?: number): PivotedQr {
+  const a = new Float64Array(x);
+  const scale = new Float64Array(p);
+  const norms = new Float64Array(p);
+  const original = new Float64Array(p);
+  const pivot = new Int32Array(p);
+  for (let j = 0; j < p; j++) {
+    pivot[j] = j;
+    let ss = 0;
+    const off = j * n;
+    for (let i = 0; i < n; i++) ss += a[off + i]! * a[off + i]!;
+    const s = powerOfTwoNear(Math.sqrt(ss));
+    scale[j] = s;
+    const inv = 1 / s;
+    let ss2 = 0;
+    for (let i = 0; i < n; i++) {
+      const v = a[off + i]! * inv;
+      a[off + i] = v;
+      ss2 += v * v;
+    }
+    norms[j] = Math.sqrt(ss2);
+    original[j] = norms[j]!;
+  }
+  const m = Math.min(n, p);
+  const v0 = new Float64Array(m);
+  const beta = new Float64Array(m);
+  const diag = new Float64Array(m);
+  const tol = rankTolerance ?? Math.max(n, p) * 1e-15;
+  const sqrtEps = Math.sqrt(2.220446049250313e-16);
+  let rank = 0;
+  let first = 0;
+  for (let k = 0; k < m; k++) {
+    // Pivot: the largest remaining norm; ties (within 1e-10) go to the earliest position, so
+    // exactly aliased columns later in the term list are the ones declared aliased.
+    let best = k;
+    let bestNorm = norms[k]!;
+    for (let j = k + 1; j < p; j++) if (norms[j]! > bestNorm * (1 + 1e-10)) { best = j; bestNorm = norms[j]!; }
+    if (best !== k) {
+      const ok = k * n;
+      const ob = best * n;
+      for (let i = 0; i < n; i++) { const t = a[ok + i]!; a[ok + i] = a[ob + i]!; a[ob + i] = t; }
+      let t = norms[k]!; norms[k] = norms[best]!; norms[best] = t;
+      t = original[k]!; original[k] = original[best]!; original[best] = t;
+      const pt = pivot[k]!; pivot[k] = pivot[best]!; pivot[best] = pt;
+    }
+    const off = k * n;
+    let ss = 0;
+    for (let i = k; i < n; i++) ss += a[off + i]! * a[off + i]!;
+    const xnorm = Math.sqrt(ss);
+    if (k === 0) first = xnorm;
+    if (xnorm === 0 || xnorm <= tol * first) break;
+    const x0 = a[off + k]!;
+    const alpha = x0 >= 0 ? -xnorm : xnorm;
+    const v0k = x0 - alpha;
+    const b = -1 / (alpha * v0k);
+    v0[k] = v0k;
+    beta[k] = b;
+    diag[k] = alpha;
+    a[off + k] = v0k;
+    for (let j = k + 1; j < p; j++) {
+      const oj = j * n;
+      let w = 0;
+      for (let i = k; i < n; i++) w += a[off + i]! * a[oj + i]!;
+      w *= b;
+      if (w !== 0) for (let i = k; i < n; i++) a[oj + i] -= w * a[off + i]!;
+      // Downdate the partial norm; recompute when cancellation makes it unreliable (as LAPACK's xGEQP3).
+      const nj = norms[j]!;
+      if (nj !== 0) {
+        const ratio = Math.abs(a[oj + k]!) / nj;
+        const temp = Math.max(0, (1 + ratio) * (1 - ratio));
+        const rel = nj / original[j]!;
+        if (temp * rel * rel <= sqrtEps) {
+          let s2 = 0;
+          for (let i = k + 1; i < n; i++) s2 += a[oj + i]! * a[oj + i]!;
+          norms[j] = Math.sqrt(s2);
+          original[j] = norms[j]!;
+        } else {
+          norms[j] = nj * Math.sqrt(temp);
+        }
+      }
+    }
+    rank = k + 1;
+  }
+  return { n, p, a, v0, beta, diag, pivot, scale, rank };
+}
+
+/** Apply Qᵀ (first `rank` reflectors) to vector y in place. */
+function applyQt(qr: PivotedQr, y: Float64Array): void {
+  const { n, a, beta, rank } = qr;
+  for (let k = 0; k < rank; k++) {
+    const off = k * n;
+    let w = 0;
+    for (let i = k; i < n; i++) w += a[off + i]! * y[i]!;
+    w *= beta[k]!;
+    if (w !== 0) for (let i = k; i < n; i++) y[i] -= w * a[off + i]!;
+  }
+}
+
+/** Apply Q (first `rank` reflectors) to vector y in place. */
+function applyQ(qr: PivotedQr, y: Float64Array): void {
+  const { n, a, beta, rank } = qr;
+  for (let k = rank - 1; k >= 0; k--) {
+    const off = k * n;
+    let w = 0;
+    for (let i = k; i < n; i++) w += a[off + i]! * y[i]!;
+    w *= beta[k]!;
+    if (w !== 0) for (let i = k; i < n; i++) y[i] -= w * a[off + i]!;
+  }
+}
+
+/** R entry (row i ≤ col j < rank) of the factorisation. */
+function rAt(qr: PivotedQr, i: number, j: number): number {
+  return i === j ? qr.diag[i]! : qr.a[j * qr.n + i]!;
+}
+
+/** Solve R z = c (upper-triangular, rank × rank) in place. */
+function solveR(qr: PivotedQr, c: Float64Array): void {
+  const r = qr.rank;
+  for (let i = r - 1; i >= 0; i--) {
+    let s = c[i]!;
+    for (let j = i + 1; j < r; j++) s -= rAt(qr, i, j) * c[j]!;
+    c[i] = s / qr.diag[i]!;
+  }
+}
+
+/** Solve Rᵀ h = g in place. */
+function solveRt(qr: PivotedQr, g: Float64Array): void {
+  const r = qr.rank;
+  for (let i = 0; i < r; i++) {
+    let s = g[i]!;
+    for (let j = 0; j < i; j++) s -= rAt(qr, j, i) * g[j]!;
+    g[i] = s / qr.diag[i]!;
+  }
+}
+
+/**
+ * Scaled basis matrix Z (column-major n × rank): column k is original column pivot[k] divided by
+ * its power-of-two scale (exact).
+ */
+function scaledBasis(x: Float64Array, qr: PivotedQr): Float64Array {
+  // (x may be the low-order parts; the power-of-two scale keeps both exact)
+  const { n, rank, pivot, scale } = qr;
+  const z = new Float64Array(n * rank);
+  for (let k = 0; k < rank; k++) {
+    const src = pivot[k]! * n;
+    const inv = 1 / scale[pivot[k]!]!;
+    for (let i = 0; i < n; i++) z[k * n + i] = x[src + i]! * inv;
+  }
+  return z;
+}
+
+const rowScratch = { vals: new Float64Array(0), coefs: new Float64Array(0) };
+
+/** rhs − rOld − (Z + zLow)_i · c for row i, in about twice the working precision. */
+function residualRow(z: Float64Array, zLow: Float64Array | null, n: number, rank: number, i: number, c: Float64Array, rhs: number, rOld: number): number {
+  const len = (zLow ? 2 * rank : rank) + 2;
+  if (rowScratch.vals.length < len) {
+    rowScratch.vals = new Float64Array(len);
+    rowScratch.coefs = new Float64Array(len);
+  }
+  const { vals, coefs } = rowScratch;
+  let m = 0;
+  for (let k = 0; k < rank; k++) { vals[m] = z[k * n + i]!; coefs[m++] = -c[k]!; }
+  if (zLow) for (let k = 0; k < rank; k++) { vals[m] = zLow[k * n + i]!; coefs[m++] = -c[k]!; }
+  vals[m] = 1; coefs[m++] = -rOld;
+  vals[m] = 1; coefs[m++] = rhs;
+  return dot2(vals, 0, 1, coefs, 0, m);
+}
+
+/**
+ * One refinement step of the augmented system [I Z; Zᵀ 0][r; c] = [rhsTop; rhsBottom]: residuals of
+ * both block equations in extended precision, correction by the QR factors, added in place.
+ */
+function refineAugmented(qr: PivotedQr, z: Float64Array, zLow: Float64Array | null, r: Float64Array, c: Float64Array, rhsTop: Float64Array | null, rhsBottom: Float64Array | null): void {
+  const { n, rank } = qr;
+  // f = rhsTop − r − Z c, computed row by row with a compensated dot product.
+  const f = new Float64Array(n);
+  for (let i = 0; i < n; i++) f[i] = residualRow(z, zLow, n, rank, i, c, rhsTop ? rhsTop[i]! : 0, r[i]!);
+  // g = rhsBottom − Zᵀ r
+  const g = new Float64Array(rank);
+  for (let k = 0; k < rank; k++) {
+    let v = -dot2(z, k * n, 1, r, 0, n, rhsBottom ? -rhsBottom[k]! : 0);
+    if (zLow) v -= dot2(zLow, k * n, 1, r, 0, n);
+    g[k] = v;
+  }
+  // Correction: h = R⁻ᵀ g; d = Qᵀ f; dc = R⁻¹(d₁ − h); dr = Q [h; d₂].
+  solveRt(qr, g);
+  applyQt(qr, f);
+  const dc = new Float64Array(rank);
+  for (let k = 0; k < rank; k++) dc[k] = f[k]! - g[k]!;
+  solveR(qr, dc);
+  for (let k = 0; k < rank; k++) f[k] = g[k]!;
+  applyQ(qr, f);
+  for (let k = 0; k < rank; k++) c[k] += dc[k]!;
+  for (let i = 0; i < n; i++) r[i] += f[i]!;
+}
+
+/**
+ * Least squares fit of y on the columns of X (column-major n × p). Aliased columns (beyond the
+ * numerical rank) get NaN coefficients; the others are the fit on the estimable basis.
+ */
+export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p: number, options: LeastSquaresOptions = {}): LeastSquaresFit {
+  const qr = pivotedQr(x, n, p, options.rankTolerance);
+  const { rank, pivot, scale } = qr;
+  const yv = Float64Array.from(y);
+  // Initial solution c (scaled, pivoted order).
+  const qty = Float64Array.from(yv);
+  applyQt(qr, qty);
+  const c = qty.slice(0, rank);
+  solveR(qr, c);
+  let dmax = 0;
+  let dmin = Infinity;
+  for (let k = 0; k < rank; k++) {
+    dmax = Math.max(dmax, Math.abs(qr.diag[k]!));
+    dmin = Math.min(dmin, Math.abs(qr.diag[k]!));
+  }
+  const conditionEstimate = rank > 0 ? dmax / dmin : Infinity;
+  const illConditioned = conditionEstimate > ILL_CONDITIONED;
+
+  const z = scaledBasis(x, qr);
+  const low = typeof options.xLow === 'function' ? (illConditioned ? options.xLow() : null) : options.xLow;
+  const zLow = low ? scaledBasis(low, qr) : null;
+  // Residual r = y − Z c in extended precision.
+  const r = new Float64Array(n);
+  for (let i = 0; i < n; i++) r[i] = residualRow(z, zLow, n, rank, i, c, yv[i]!, 0);
+  const steps = options.refinementSteps ?? (illConditioned ? 3 : 1);
+  for (let s = 0; s < steps; s++) refineAugmented(qr, z, zLow, r, c, yv, null);
+
+  // Unscaled covariance over the basis, in pivoted order first: (ZᵀZ)⁻¹ = R⁻¹R⁻ᵀ.
+  const cov = new Float64Array(rank * rank);
+  const refineCov = options.refineCovariance ?? 'auto';
+  const doRefine = refineCov === true || (refineCov === 'auto' && illConditioned);
+  const e = new Float64Array(rank);
+  for (let j = 0; j < rank; j++) {
+    e.fill(0);
+    e[j] = 1;
+    const w = Float64Array.from(e);
+    solveRt(qr, w);
+    solveR(qr, w); // w = (ZᵀZ)⁻¹ e_j
+    if (doRefine) {
+      // [I Z; Zᵀ 0][r; u] = [0; e_j] has u = −(ZᵀZ)⁻¹ e_j and r = −Z u.
+      const u = new Float64Array(rank);
+      for (let k = 0; k < rank; k++) u[k] = -w[k]!;
+      const rr = new Float64Array(n);
+      for (let i = 0; i < n; i++) rr[i] = residualRow(z, zLow, n, rank, i, u, 0, 0);
+      for (let s = 0; s < 2; s++) refineAugmented(qr, z, zLow, rr, u, null, e);
+      for (let k = 0; k < rank; k++) w[k] = -u[k]!;
+    }
+    for (let k = 0; k < rank; k++) cov[k * rank + j] = w[k]!;
+  }
+
+  // Back to original columns and units: b_j = c_k / scale_j; cov scales likewise.
+  const coefficients = new Float64Array(p).fill(NaN);
+  for (let k = 0; k < rank; k++) coefficients[pivot[k]!] = c[k]! / scale[pivot[k]!]!;
+  const basis = Array.from(pivot.slice(0, rank)).sort((u, v) => u - v);
+  const aliased = Array.from(pivot.slice(rank)).sort((u, v) => u - v);
+  const posOf = new Map<number, number>();
+  for (let k = 0; k < rank; k++) posOf.set(pivot[k]!, k);
+  const unscaledCovariance = new Float64Array(rank * rank);
+  for (let i = 0; i < rank; i++) {
+    const ki = posOf.get(basis[i]!)!;
+    for (let j = 0; j < rank; j++) {
+      const kj = posOf.get(basis[j]!)!;
+      unscaledCovariance[i * rank + j] = cov[ki * rank + kj]! / (scale[basis[i]!]! * scale[basis[j]!]!);
+    }
+  }
+  const fitted = new Float64Array(n);
+  let rss = 0;
+  let comp = 0;
+  for (let i = 0; i < n; i++) {
+    fitted[i] = yv[i]! - r[i]!;
+    const sq = r[i]! * r[i]!;
+    const t = rss + sq;
+    if (rss >= sq) comp += (rss - t) + sq;
+    else comp += (sq - t) + rss;
+    rss = t;
+  }
+  return {
+    n,
+    p,
+    rank,
+    coefficients,
+    basis,
+    aliased,
+    unscaledCovariance,
+    fitted,
+    residuals: r,
+    residualSumOfSquares: rss + comp,
+    conditionEstimate,
+  };
+}

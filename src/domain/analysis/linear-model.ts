@@ -1,0 +1,164 @@
+/**
+ * Ordinary least squares for a model frame: coefficients with standard errors, t, p and 95%
+ * intervals; an ANOVA table with the model, each term's partial F (the extra sum of squares of the
+ * term given all others), the residual split into lack of fit and pure error when settings repeat,
+ * and the total; R², adjusted R² and the residual standard error.
+ */
+import { CholeskyDecomposition, Matrix } from 'ml-matrix';
+import { accurateMean, sumOfSquaredDeviations } from './compensated';
+import { fUpperP, tQuantile, tTwoSidedP } from './distributions';
+import { leastSquares, type LeastSquaresFit, type LeastSquaresOptions } from './least-squares';
+import type { ModelFrame } from './model-frame';
+import type { AnovaRow, CoefficientRow, LackOfFit } from './types';
+
+export interface LinearModelFit {
+  frame: ModelFrame;
+  fit: LeastSquaresFit;
+  coefficients: CoefficientRow[];
+  aliased: string[];
+  anova: AnovaRow[];
+  rSquared: number;
+  adjustedRSquared: number;
+  residualStdError: number | null;
+  residualDf: number;
+  meanSquaredError: number;
+  lackOfFit?: LackOfFit;
+  /** Σ(y − ȳ)² with an intercept, Σy² without. */
+  totalSs: number;
+}
+
+function upperP(f: number, df1: number, df2: number): number | null {
+  if (!(df1 > 0) || !(df2 > 0) || Number.isNaN(f)) return null;
+  return fUpperP(f, df1, df2);
+}
+
+function ratio(ms: number, mse: number): number | null {
+  if (Number.isNaN(ms) || Number.isNaN(mse)) return null;
+  if (mse === 0) return ms === 0 ? null : Infinity;
+  return ms / mse;
+}
+
+/** Extra sum of squares of a set of basis positions: b_Jᵀ (V_JJ)⁻¹ b_J with V = (XᵀX)⁻¹. */
+function partialSs(fit: LeastSquaresFit, positions: number[]): number {
+  const rank = fit.rank;
+  const k = positions.length;
+  const b = positions.map((pos) => fit.coefficients[fit.basis[pos]!]!);
+  if (k === 1) return (b[0]! * b[0]!) / fit.unscaledCovariance[positions[0]! * rank + positions[0]!]!;
+  const v = new Matrix(k, k);
+  for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) v.set(i, j, fit.unscaledCovariance[positions[i]! * rank + positions[j]!]!);
+  const chol = new CholeskyDecomposition(v);
+  const sol = chol.solve(Matrix.columnVector(b));
+  let ss = 0;
+  for (let i = 0; i < k; i++) ss += b[i]! * sol.get(i, 0);
+  return ss;
+}
+
+/** Pure-error sum of squares from runs that share the same factor setting. */
+function pureError(frame: ModelFrame): { ss: number; df: number; groups: number } {
+  const groups = new Map<string, number[]>();
+  frame.points.forEach((pt, i) => {
+    const key = Array.from(pt).join('|');
+    const g = groups.get(key);
+    if (g) g.push(i);
+    else groups.set(key, [i]);
+  });
+  let ss = 0;
+  for (const idx of groups.values()) {
+    if (idx.length < 2) continue;
+    const ys = idx.map((i) => frame.y[i]!);
+    ss += sumOfSquaredDeviations(ys, accurateMean(ys));
+  }
+  return { ss, df: frame.n - groups.size, groups: groups.size };
+}
+
+export function fitLinearModel(frame: ModelFrame, options: LeastSquaresOptions = {}): LinearModelFit {
+  const { n, p, model, intercept } = frame;
+  const fit = leastSquares(frame.x, frame.y, n, p, { xLow: frame.lowParts, ...options });
+  const rank = fit.rank;
+  const residualDf = n - rank;
+  const rss = fit.residualSumOfSquares;
+  const mse = residualDf > 0 ? rss / residualDf : NaN;
+  const hasError = residualDf > 0;
+  const tCrit = hasError ? tQuantile(0.975, residualDf) : NaN;
+
+  const coefficients: CoefficientRow[] = fit.basis.map((col, pos) => {
+    const estimate = fit.coefficients[col]!;
+    const term = model.terms[model.termOfColumn[col]!]!.label;
+    if (!hasError) return { term: model.labels[col]!, modelTerm: term, estimate, stdError: null, statistic: null, p: null, ci95: null };
+    const se = Math.sqrt(mse * fit.unscaledCovariance[pos * rank + pos]!);
+    const t = se > 0 ? estimate / se : estimate === 0 ? NaN : estimate > 0 ? Infinity : -Infinity;
+    return {
+      term: model.labels[col]!,
+      modelTerm: term,
+      estimate,
+      stdError: se,
+      statistic: Number.isNaN(t) ? null : t,
+      p: Number.isNaN(t) ? null : tTwoSidedP(t, residualDf),
+      ci95: [estimate - tCrit * se, estimate + tCrit * se],
+    };
+  });
+  const aliased = fit.aliased.map((col) => model.labels[col]!);
+
+  // Sums of squares: total about the mean (or about zero without an intercept), model from the fitted values.
+  const ybar = intercept ? accurateMean(frame.y) : 0;
+  const totalSs = sumOfSquaredDeviations(frame.y, ybar);
+  const modelSs = sumOfSquaredDeviations(fit.fitted, ybar);
+  const interceptInBasis = intercept && fit.basis.includes(0);
+  const modelDf = rank - (interceptInBasis ? 1 : 0);
+  const totalDf = n - (intercept ? 1 : 0);
+  const anova: AnovaRow[] = [];
+  if (modelDf > 0) {
+    const ms = modelSs / modelDf;
+    const f = ratio(ms, mse);
+    anova.push({ source: 'Model', df: modelDf, ss: modelSs, ms, f, p: f === null ? null : upperP(f, modelDf, residualDf) });
+  }
+  // Each term: its columns that are in the basis.
+  const posOfColumn = new Map(fit.basis.map((col, pos) => [col, pos]));
+  model.terms.forEach((t, ti) => {
+    if (t.parts.length === 0) return;
+    const positions: number[] = [];
+    model.termOfColumn.forEach((owner, col) => {
+      if (owner === ti && posOfColumn.has(col)) positions.push(posOfColumn.get(col)!);
+    });
+    if (positions.length === 0) return;
+    const ss = partialSs(fit, positions);
+    const df = positions.length;
+    const ms = ss / df;
+    const f = ratio(ms, mse);
+    anova.push({ source: t.label, df, ss, ms, f, p: f === null ? null : upperP(f, df, residualDf) });
+  });
+  anova.push({ source: 'Residual', df: residualDf, ss: rss, ms: hasError ? mse : null, f: null, p: null });
+  let lackOfFit: LackOfFit | undefined;
+  const pe = pureError(frame);
+  const lofDf = residualDf - pe.df;
+  if (pe.df > 0 && lofDf > 0) {
+    const lofSs = Math.max(0, rss - pe.ss);
+    const msPe = pe.ss / pe.df;
+    const msLof = lofSs / lofDf;
+    const f = ratio(msLof, msPe);
+    const pv = f === null ? null : upperP(f, lofDf, pe.df);
+    anova.push({ source: 'Lack of fit', df: lofDf, ss: lofSs, ms: msLof, f, p: pv });
+    anova.push({ source: 'Pure error', df: pe.df, ss: pe.ss, ms: msPe, f: null, p: null });
+    if (f !== null && pv !== null) {
+      lackOfFit = { lackOfFitDf: lofDf, lackOfFitSs: lofSs, pureErrorDf: pe.df, pureErrorSs: pe.ss, f, p: pv, groups: pe.groups };
+    }
+  }
+  anova.push({ source: 'Total', df: totalDf, ss: totalSs, ms: null, f: null, p: null });
+
+  const rSquared = totalSs > 0 ? 1 - rss / totalSs : NaN;
+  const adjustedRSquared = hasError && totalDf > 0 ? 1 - ((1 - rSquared) * totalDf) / residualDf : NaN;
+  return {
+    frame,
+    fit,
+    coefficients,
+    aliased,
+    anova,
+    rSquared,
+    adjustedRSquared,
+    residualStdError: hasError ? Math.sqrt(mse) : null,
+    residualDf,
+    meanSquaredError: mse,
+    lackOfFit,
+    totalSs,
+  };
+}
