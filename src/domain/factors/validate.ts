@@ -18,7 +18,7 @@ export function validateFactors(factors: readonly Factor[], field = 'factors'): 
       if (!Number.isFinite(f.low) || !Number.isFinite(f.high)) throw invalidInput(`${at}.low`, 'low and high must be finite numbers');
       if (!(f.low < f.high)) throw invalidInput(`${at}.high`, `high (${f.high}) must be greater than low (${f.low})`);
     } else if (f.kind === 'discrete') {
-      if (!Array.isArray(f.values) || f.values.length < 2 || f.values.some((v) => !Number.isFinite(v))) {
+      if (!Array.isArray(f.values) || f.values.length < 2 || f.values.some((v: number) => !Number.isFinite(v))) {
         throw invalidInput(`${at}.values`, 'a discrete factor needs at least two finite numeric values');
       }
       if (new Set(f.values).size !== f.values.length) throw invalidInput(`${at}.values`, 'discrete values must be distinct');

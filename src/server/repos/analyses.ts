@@ -1,0 +1,79 @@
+/** Fitting the campaign's logged trials, and storing each fit frozen with the data it used. */
+import { analyze, type AnalysisResult } from '@/domain/analysis';
+import { DomainError } from '@/domain/errors';
+import { standardTerms, type Factor, type StandardModel } from '@/domain/factors';
+import { db } from '@/server/db/client';
+import { audit } from './audit';
+import { domainFactors, getCampaign } from './campaigns';
+import { parseJson } from './mappers';
+
+export type DataRow = Record<string, number | string>;
+
+/** One row per finished trial that has the response: factor values of its run plus every observation. */
+export async function campaignData(campaignId: string): Promise<{ rows: DataRow[]; factors: Factor[] }> {
+  const campaign = await getCampaign(campaignId);
+  const client = await db();
+  const trials = await client.trial.findMany({
+    where: { campaignId, status: { in: ['done', 'failed'] } },
+    orderBy: { startedAt: 'asc' },
+    include: { observations: true, run: true },
+  });
+  const rows = trials.map((t) => {
+    const values = parseJson<DataRow>(t.run.valuesJson, {});
+    const row: DataRow = { ...values, run: t.run.runNumber, passed: t.passed === false ? 0 : 1 };
+    for (const o of t.observations) row[o.name] = o.value;
+    return row;
+  });
+  return { rows, factors: domainFactors(campaign) };
+}
+
+/** Terms of a standard model that the data can support: drop terms of factors that never vary. */
+export function supportedTerms(factors: Factor[], rows: DataRow[], model: StandardModel): { terms: string[]; dropped: string[] } {
+  const varying = new Set(factors.filter((f) => new Set(rows.map((r) => String(r[f.name]))).size > 1).map((f) => f.name));
+  const all = standardTerms(factors, model).filter((t) => t.parts.length > 0);
+  const terms: string[] = [];
+  const dropped: string[] = [];
+  for (const t of all) {
+    if (t.parts.every((p) => varying.has(p.name))) terms.push(t.label);
+    else dropped.push(t.label);
+  }
+  return { terms, dropped };
+}
+
+export async function fitCampaign(campaignId: string, response: string, model: StandardModel, terms?: string[], actor = 'local') {
+  const campaign = await getCampaign(campaignId);
+  if (!campaign.responses.some((r) => r.name === response)) {
+    throw new DomainError('invalid_input', `"${response}" is not a response of this campaign; known: ${campaign.responses.map((r) => r.name).join(', ')}`, 'response');
+  }
+  const { rows, factors } = await campaignData(campaignId);
+  const usable = rows.filter((r) => typeof r[response] === 'number');
+  if (usable.length === 0) throw new DomainError('invalid_input', `no finished trial has a value of ${response} yet; log trials at the rig first`, 'response');
+  const chosen = terms ?? supportedTerms(factors, usable, model).terms;
+  const request = { data: usable, response, terms: chosen, factors, coding: 'coded' as const };
+  const result: AnalysisResult = analyze(request);
+  const client = await db();
+  const stored = await client.$transaction(async (tx) => {
+    const a = await tx.analysis.create({
+      data: { campaignId, response, termsJson: JSON.stringify(chosen), requestJson: JSON.stringify({ ...request, model }), resultJson: JSON.stringify(result) },
+    });
+    await audit(tx, actor, 'fit', 'analysis', a.id, null, { response, terms: chosen, n: usable.length });
+    return a;
+  });
+  return { id: stored.id, response, model, terms: chosen, n: usable.length, result };
+}
+
+export async function latestAnalysis(campaignId: string, response?: string) {
+  const client = await db();
+  const a = await client.analysis.findFirst({ where: { campaignId, ...(response ? { response } : {}) }, orderBy: { createdAt: 'desc' } });
+  if (!a) return null;
+  const req = parseJson<{ model?: StandardModel; data?: DataRow[] }>(a.requestJson, {});
+  return {
+    id: a.id,
+    response: a.response,
+    model: req.model ?? 'main-effects',
+    terms: parseJson<string[]>(a.termsJson, []),
+    n: req.data?.length ?? 0,
+    createdAt: a.createdAt.toISOString(),
+    result: parseJson<AnalysisResult>(a.resultJson, {} as AnalysisResult),
+  };
+}
