@@ -11,11 +11,15 @@ import { MINUTE, type Prepared, type PreparedRun, type Unit } from './prepare';
  * second bound; the larger is kept (counting argument, common practice, no source).
  */
 export function changeoverLowerBound(p: Prepared, units: readonly Unit[]): number {
+  return changeoverLowerBoundByFactor(p, units).reduce((a, b) => a + b, 0);
+}
+
+/** The bound above for each factor of `p.changeoverFactors` (0 for a factor with no changeover time). */
+export function changeoverLowerBoundByFactor(p: Prepared, units: readonly Unit[]): number[] {
   const capacity = Math.max(0, ...p.rigs.map((r) => r.capacityMs));
   const rigsWithTime = p.rigs.filter((r) => r.capacityMs > 0).length;
-  let total = 0;
-  p.changeoverFactors.forEach((f, k) => {
-    if (f.ms <= 0) return;
+  return p.changeoverFactors.map((f, k) => {
+    if (f.ms <= 0) return 0;
     const work = new Map<string, number>();
     let internal = 0;
     for (const unit of units) {
@@ -26,9 +30,23 @@ export function changeoverLowerBound(p: Prepared, units: readonly Unit[]): numbe
     }
     let segments = 0;
     for (const w of work.values()) segments += capacity > 0 ? Math.ceil(w / capacity - 1e-9) : 1;
-    total += Math.max(internal, segments - Math.min(rigsWithTime, segments));
+    return Math.max(internal, segments - Math.min(rigsWithTime, segments));
   });
-  return total;
+}
+
+/** Fewest upkeeps any schedule of `trials` trials on `rigs` rigs needs. */
+export function minimumUpkeeps(p: Prepared, trials: number): number {
+  if (!p.upkeep || p.upkeep.ms <= 0 || !Number.isFinite(p.upkeep.everyTrials)) return 0;
+  return Math.max(0, Math.ceil(trials / p.upkeep.everyTrials) - p.rigs.length);
+}
+
+/** Rig time any schedule of `units` needs at least: trials, the fewest changeovers, the fewest upkeeps. */
+export function minimumRigTimeMs(p: Prepared, units: readonly Unit[]): { trialMs: number; setupMs: number } {
+  const trialMs = units.reduce((s, u) => s + u.workMs, 0);
+  const changes = changeoverLowerBoundByFactor(p, units);
+  let setupMs = changes.reduce((s, c, k) => s + c * p.changeoverFactors[k]!.ms, 0);
+  setupMs += minimumUpkeeps(p, units.reduce((s, u) => s + u.runs.length, 0)) * (p.upkeep?.ms ?? 0);
+  return { trialMs, setupMs };
 }
 
 /** Smallest T with ∑_rigs available time in [origin, origin + T] ≥ `workMs`; Infinity if never. */
@@ -68,9 +86,7 @@ export function makespanLowerBound(p: Prepared, units: readonly Unit[]): number 
       });
     }
   }
-  if (p.upkeep && p.upkeep.ms > 0 && Number.isFinite(p.upkeep.everyTrials)) {
-    work += Math.max(0, Math.ceil(runs.length / p.upkeep.everyTrials) - p.rigs.length) * p.upkeep.ms;
-  }
+  work += minimumUpkeeps(p, runs.length) * (p.upkeep?.ms ?? 0);
   const pooled = earliestCompletion(p.rigs.map((r) => r.intervals), p.originMs, work);
   const longestUnit = Math.max(...units.map((u) => u.workMs));
   const single = Math.min(...p.rigs.map((r) => earliestCompletion([r.intervals], p.originMs, longestUnit)));

@@ -2,7 +2,7 @@
  * planSchedule: a campaign's runs onto rigs and times. This file holds the sequential fill and the
  * assembly of the answer (assignments, activities, counts, bounds, what did not fit and why).
  */
-import { changeoverLowerBound, makespanLowerBound } from './bounds';
+import { changeoverLowerBound, makespanLowerBound, minimumRigTimeMs } from './bounds';
 import { MINUTE, prepare, type Prepared, type Unit } from './prepare';
 import { emptyRigState, placeUnit, type RigState } from './rig-timeline';
 import type { Infeasibility, LevelValue, RigActivity, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
@@ -49,12 +49,14 @@ export function explainUnplaced(p: Prepared, plan: RigPlan): { unscheduled: Unsc
   const infeasibility: Infeasibility[] = [];
   if (plan.unplaced.length === 0) return { unscheduled, infeasibility };
 
-  const required = p.units.reduce((s, u) => s + u.workMs, 0);
+  const { trialMs, setupMs } = minimumRigTimeMs(p, p.units);
+  const required = trialMs + setupMs;
   const available = p.rigs.reduce((s, r) => s + r.capacityMs, 0);
   if (required > available) {
+    const setupNote = setupMs > 0 ? ` (${hours(trialMs)} of trials and at least ${hours(setupMs)} of changeovers and upkeep)` : '';
     infeasibility.push({
       constraint: 'rig_hours',
-      message: `the runs need ${hours(required)} of trial time but the rigs offer ${hours(available)}: short by ${hours(required - available)} before any changeover or upkeep`,
+      message: `the runs need at least ${hours(required)} of rig time${setupNote} but the rigs offer ${hours(available)}: short by ${hours(required - available)}`,
       requiredMinutes: minutes(required),
       availableMinutes: minutes(available),
       shortByMinutes: minutes(required - available),

@@ -1,0 +1,47 @@
+/** POST /api/v1/schedules: the request schema and the handler (stateless: runs and rigs in, schedule out). */
+import { z } from 'zod';
+import { planSchedule, type ScheduleRequest, type ScheduleResult } from '@/domain/schedule';
+import { parseWith } from './validation';
+
+const instant = z.iso.datetime({ offset: true, message: 'write an ISO 8601 instant with a zone, e.g. 2026-03-02T08:00:00Z' });
+const minutes = z.number().finite().min(0).max(7 * 24 * 60);
+const label = z.union([z.string().min(1).max(80), z.number().int()]);
+
+export const scheduleRunSchema = z.object({
+  id: z.string().min(1).max(80),
+  values: z.record(z.string(), z.union([z.number(), z.string(), z.boolean()])),
+  durationMinutes: z.number().finite().positive().max(7 * 24 * 60).optional(),
+  wholePlot: label.optional(),
+  block: label.optional(),
+});
+
+export const scheduleRigSchema = z.object({
+  name: z.string().min(1).max(80),
+  available: z.array(z.object({ start: instant, end: instant })).max(5000),
+});
+
+export const scheduleRequestSchema = z.object({
+  runs: z.array(scheduleRunSchema).max(5000),
+  rigs: z.array(scheduleRigSchema).min(1, 'name at least one rig').max(100),
+  changeoverMinutes: z.record(z.string(), minutes).optional(),
+  upkeep: z
+    .object({
+      everyTrials: z.number().int().min(1).max(10_000).optional(),
+      everyMinutes: z.number().finite().positive().max(7 * 24 * 60).optional(),
+      minutes,
+      cooldownMinutes: minutes.optional(),
+    })
+    .optional(),
+  defaultDurationMinutes: z.number().finite().positive().max(7 * 24 * 60).optional(),
+  timeZone: z.string().min(1).max(60).optional(),
+  blockDays: z.record(z.string(), z.iso.date({ message: 'write a calendar day as yyyy-MM-dd' })).optional(),
+  strategy: z.enum(['sequential', 'grouped']).optional(),
+  seed: z.number().int().optional(),
+});
+
+export type ScheduleRequestInput = z.infer<typeof scheduleRequestSchema>;
+
+export function handleScheduleRequest(body: unknown): ScheduleResult {
+  const request: ScheduleRequest = parseWith(scheduleRequestSchema, body);
+  return planSchedule(request);
+}

@@ -1,0 +1,50 @@
+import { describe, expect, it } from 'vitest';
+import { handleScheduleRequest } from '@/server/api/schedules';
+import { POST } from '@/app/api/v1/schedules/route';
+
+const body = {
+  runs: [
+    { id: 'r1', values: { surface: 'ice' }, durationMinutes: 30 },
+    { id: 'r2', values: { surface: 'grass' }, durationMinutes: 30 },
+  ],
+  rigs: [{ name: 'A', available: [{ start: '2026-03-02T08:00:00Z', end: '2026-03-02T10:00:00Z' }] }],
+  changeoverMinutes: { surface: 40 },
+};
+
+describe('POST /api/v1/schedules', () => {
+  it('answers assignments, changeovers, makespan, bounds and unscheduled runs', () => {
+    const res = handleScheduleRequest(body);
+    expect(res.assignments).toEqual([
+      { runId: 'r1', rig: 'A', start: '2026-03-02T08:00:00.000Z', end: '2026-03-02T08:30:00.000Z' },
+      { runId: 'r2', rig: 'A', start: '2026-03-02T09:10:00.000Z', end: '2026-03-02T09:40:00.000Z' },
+    ]);
+    expect(res.changeovers).toBe(1);
+    expect(res.makespanMinutes).toBe(100);
+    expect(res.lowerBound.changeovers).toBe(1);
+    expect(res.unscheduled).toEqual([]);
+  });
+
+  it('names the field of a malformed request', () => {
+    expect(() => handleScheduleRequest({ ...body, rigs: [{ name: 'A', available: [{ start: 'Monday 8am', end: '2026-03-02T10:00:00Z' }] }] })).toThrow(
+      expect.objectContaining({ field: 'rigs[0].available[0].start' }),
+    );
+    expect(() => handleScheduleRequest({ ...body, timeZone: 'Nowhere/Town' })).toThrow(expect.objectContaining({ field: 'timeZone' }));
+  });
+
+  it('maps errors to 400 JSON through the route and schedules what fits when rig hours run short', async () => {
+    const bad = await POST(new Request('http://localhost/api/v1/schedules', { method: 'POST', body: JSON.stringify({ runs: [] }) }));
+    expect(bad.status).toBe(400);
+    expect((await bad.json()).error.field).toBe('rigs');
+
+    const short = await POST(
+      new Request('http://localhost/api/v1/schedules', {
+        method: 'POST',
+        body: JSON.stringify({ ...body, runs: [...body.runs, { id: 'r3', values: { surface: 'ice' }, durationMinutes: 60 }] }),
+      }),
+    );
+    expect(short.status).toBe(200);
+    const json = await short.json();
+    expect(json.unscheduled).toEqual([{ runId: 'r3', reason: expect.stringMatching(/not enough rig time/) }]);
+    expect(json.infeasibility[0]).toMatchObject({ constraint: 'rig_hours', requiredMinutes: 160, availableMinutes: 120, shortByMinutes: 40 });
+  });
+});
