@@ -1,0 +1,163 @@
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { trackMetrics } from '@/domain/tracks';
+import { flightTimeForApex, takeoffSpeedForApex } from '@/domain/metrics/ballistics';
+import { syntheticTrack, type SyntheticHop } from './synthetic';
+
+const mapping = { time: 'time', x: 'pos_x', y: 'pos_y', z: 'pos_z', lengthUnit: 'm', timeUnit: 's' } as const;
+
+const threeHops: SyntheticHop[] = [
+  { apexHeight: 0.2, vx: 0.3, vy: 0.1, stanceBefore: 0.3 },
+  { apexHeight: 0.1, vx: 0.2, vy: 0, stanceBefore: 0.15 },
+  { apexHeight: 0.05, vx: -0.1, vy: 0.05, stanceBefore: 0.1 },
+];
+
+describe('track metrics on synthetic ballistic tracks (known parameters)', () => {
+  it('recovers a clean track almost exactly', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 1000 });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.hops).toHaveLength(3);
+    expect(r.warnings).toEqual([]);
+    r.hops.forEach((hop, k) => {
+      const truth = track.truth[k]!;
+      expect(hop.index).toBe(k + 1);
+      expect(hop.apexHeight).toBeCloseTo(truth.apexHeight, 5);
+      expect(hop.takeoffTime).toBeCloseTo(truth.takeoffTime, 4);
+      expect(hop.landingTime).toBeCloseTo(truth.landingTime, 4);
+      expect(hop.hopLength).toBeCloseTo(truth.hopLength, 4);
+      expect(hop.takeoffSpeed).toBeCloseTo(truth.takeoffSpeed, 3);
+      expect(hop.takeoffAngleDeg).toBeCloseTo(truth.takeoffAngleDeg, 2);
+      expect(hop.fittedGravity).toBeCloseTo(9.80665, 3);
+    });
+    // The ballistic relations: a 0.20 m apex needs 1.98 m/s vertical and about 0.40 s of flight (common practice, no source).
+    expect(r.hops[0]!.flightTime).toBeCloseTo(0.40, 2);
+    expect(r.hops[0]!.flightTime).toBeCloseTo(flightTimeForApex(0.2), 4);
+    expect(Math.sqrt(r.hops[0]!.takeoffSpeed ** 2 - (0.3 ** 2 + 0.1 ** 2))).toBeCloseTo(takeoffSpeedForApex(0.2), 3);
+    // Stance, restitution, horizontal speed over the cycle.
+    expect(r.hops[0]!.stanceTime).toBeCloseTo(0.15, 4);
+    expect(r.hops[1]!.stanceTime).toBeCloseTo(0.1, 4);
+    expect(r.hops[2]!.stanceTime).toBeUndefined();
+    expect(r.hops[1]!.restitution).toBeCloseTo(Math.sqrt(0.5), 4);
+    expect(r.hops[0]!.restitution).toBeUndefined();
+    const cycle = track.truth[1]!.takeoffTime - track.truth[0]!.takeoffTime;
+    expect(r.hops[0]!.horizontalSpeed).toBeCloseTo(track.truth[0]!.hopLength / cycle, 4);
+    expect(r.summary.hopCount).toBe(3);
+    expect(r.summary.groundLevel).toBeCloseTo(0.012, 6);
+    expect(r.summary.totalDistance).toBeCloseTo(track.truth.reduce((a, h) => a + h.hopLength, 0), 4);
+  });
+
+  it('gives landing errors, energy per hop and cost of transport E/(m g d)', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
+    const r = trackMetrics(track.csv, { ...mapping, massGrams: 1.5, energyJoules: 0.6, targetX: 0.25, targetY: 0.25 });
+    const last = track.truth[2]!;
+    expect(r.hops[2]!.landingError).toBeCloseTo(Math.hypot(last.landingX - 0.25, last.landingY - 0.25), 4);
+    expect(r.hops[0]!.energy).toBeCloseTo(0.2, 12);
+    expect(r.summary.energyPerHop).toBeCloseTo(0.2, 12);
+    expect(r.summary.costOfTransport).toBeCloseTo(0.6 / (0.0015 * 9.80665 * r.summary.totalDistance), 8);
+    expect(r.hops[0]!.costOfTransport).toBeCloseTo(0.2 / (0.0015 * 9.80665 * r.hops[0]!.cycleDistance), 8);
+    expect(r.summary.meanLandingError).not.toBeNull();
+  });
+
+  it('reads millimetres and milliseconds and answers in SI', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500, lengthScale: 1000, timeScale: 1000 });
+    const r = trackMetrics(track.csv, { ...mapping, lengthUnit: 'mm', timeUnit: 'ms', targetX: 250, targetY: 250 });
+    expect(r.hops).toHaveLength(3);
+    expect(r.hops[0]!.apexHeight).toBeCloseTo(0.2, 4);
+    expect(r.hops[0]!.flightTime).toBeCloseTo(track.truth[0]!.landingTime - track.truth[0]!.takeoffTime, 3);
+    expect(r.hops[2]!.landingError).toBeCloseTo(Math.hypot(track.truth[2]!.landingX - 0.25, track.truth[2]!.landingY - 0.25), 3);
+  });
+
+  it('warns when the units look wrong (gravity 1000 times too large)', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500, lengthScale: 1000 });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.warnings.join(' ')).toMatch(/lengthUnit=mm/);
+  });
+
+  it('warns when the fitted gravity is off (a tether or wings)', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500, gravity: 7 });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.hops).toHaveLength(3);
+    expect(r.hops[0]!.fittedGravity).toBeCloseTo(7, 3);
+    expect(r.warnings.join(' ')).toMatch(/fitted gravity differs from 9.80665/);
+  });
+
+  it('splits two hops whose stance between them fell into a dropout', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
+    // Remove every sample from shortly before the first landing to shortly after the second takeoff.
+    const lines = track.csv.trim().split('\n');
+    const a = track.truth[0]!.landingTime - 0.02;
+    const b = track.truth[1]!.takeoffTime + 0.02;
+    const kept = lines.filter((line, i) => i === 0 || !(Number(line.split(',')[0]) > a && Number(line.split(',')[0]) < b));
+    const r = trackMetrics(kept.join('\n'), mapping);
+    expect(r.hops).toHaveLength(3);
+    expect(r.hops[0]!.apexHeight).toBeCloseTo(0.2, 3);
+    expect(r.hops[1]!.apexHeight).toBeCloseTo(0.1, 3);
+    expect(r.warnings.join(' ')).toMatch(/gaps longer than/);
+  });
+
+  it('does not count a flight cut by the start of the track, and says so', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
+    const lines = track.csv.trim().split('\n');
+    const cut = lines.filter((line, i) => i === 0 || Number(line.split(',')[0]) > 0.45);
+    const r = trackMetrics(cut.join('\n'), mapping);
+    expect(r.hops).toHaveLength(2);
+    expect(r.warnings.join(' ')).toMatch(/cut by the start or end/);
+  });
+
+  it('sorts samples given out of time order', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
+    const [head, ...rows] = track.csv.trim().split('\n');
+    const shuffledRows = rows.slice().reverse();
+    const r = trackMetrics([head, ...shuffledRows].join('\n'), mapping);
+    expect(r.hops).toHaveLength(3);
+    expect(r.warnings.join(' ')).toMatch(/sorted by time/);
+  });
+
+  it('reports no hops for a robot that never leaves the ground', () => {
+    const track = syntheticTrack({ hops: [], finalStance: 1, noise: 0.0003 });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.hops).toEqual([]);
+    expect(r.summary.meanApexHeight).toBeNull();
+    expect(r.warnings.join(' ')).toMatch(/no complete hop/);
+  });
+
+  it('refuses a track with too few usable samples and bad units', () => {
+    expect(() => trackMetrics('time,pos_x,pos_y,pos_z\n0,0,0,0\n', mapping)).toThrow(/at least 10/);
+    expect(() => trackMetrics('time,pos_x,pos_y,pos_z\n0,0,0,0\n', { ...mapping, lengthUnit: 'in' as never })).toThrow(/lengthUnit/);
+    expect(() => trackMetrics('time,pos_x,pos_y,pos_z\n0,0,0,0\n', { ...mapping, massGrams: -1 })).toThrow(/massGrams/);
+  });
+
+  // Stated tolerances with noise σ ≤ 0.5 mm, 250-1000 Hz sampling with ±30 % jitter and up to 5 % dropped
+  // rows: apex within 3 mm + 2 %, takeoff and landing times within 4 ms, hop length within 5 mm + 3 %.
+  it('recovers apex, length and times within the stated tolerances under noise, uneven sampling and dropouts', () => {
+    const hopArb = fc.record({
+      apexHeight: fc.double({ min: 0.03, max: 0.3, noNaN: true }),
+      vx: fc.double({ min: -0.5, max: 0.5, noNaN: true }),
+      vy: fc.double({ min: -0.5, max: 0.5, noNaN: true }),
+      stanceBefore: fc.double({ min: 0.08, max: 0.4, noNaN: true }),
+    });
+    fc.assert(
+      fc.property(
+        fc.array(hopArb, { minLength: 1, maxLength: 4 }),
+        fc.integer({ min: 250, max: 1000 }),
+        fc.double({ min: 0, max: 0.3, noNaN: true }),
+        fc.double({ min: 0, max: 0.0005, noNaN: true }),
+        fc.double({ min: 0, max: 0.05, noNaN: true }),
+        fc.integer({ min: 1, max: 1_000_000 }),
+        (hops, sampleRate, jitter, noise, dropout, seed) => {
+          const track = syntheticTrack({ hops, sampleRate, jitter, noise, dropout, seed });
+          const r = trackMetrics(track.csv, mapping);
+          expect(r.hops).toHaveLength(hops.length);
+          r.hops.forEach((hop, k) => {
+            const truth = track.truth[k]!;
+            expect(Math.abs(hop.apexHeight - truth.apexHeight)).toBeLessThan(0.003 + 0.02 * truth.apexHeight);
+            expect(Math.abs(hop.takeoffTime - truth.takeoffTime)).toBeLessThan(0.004);
+            expect(Math.abs(hop.landingTime - truth.landingTime)).toBeLessThan(0.004);
+            expect(Math.abs(hop.hopLength - truth.hopLength)).toBeLessThan(0.005 + 0.03 * truth.hopLength);
+          });
+        },
+      ),
+      { numRuns: 60 },
+    );
+  });
+});
