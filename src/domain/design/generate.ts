@@ -15,7 +15,29 @@ import { centralCompositeDesign } from './central-composite';
 import { designDiagnostics } from './diagnostics';
 import { fullFactorialDesign } from './full-factorial';
 import { randomiseRunOrder } from './randomise';
-import { DESIGN_METHODS, type CodedRun, type DesignResult, type DesignRun, type DesignSpec } from './types';
+import {
+  aliasList,
+  assertTwoLevel,
+  chooseFraction,
+  FACTOR_LETTERS,
+  fractionRuns,
+  fractionStructure,
+  parseGenerators,
+  twoLevelCoded,
+  wordLetters,
+  type Generator,
+} from './fractional-factorial';
+import { centreRuns } from './full-factorial';
+import { plackettBurmanDesign } from './plackett-burman';
+import {
+  DESIGN_METHODS,
+  type CodedRun,
+  type DesignDiagnostics,
+  type DesignResult,
+  type DesignRun,
+  type DesignSpec,
+  type FractionSummary,
+} from './types';
 
 const MODELS: readonly StandardModel[] = ['main-effects', 'interactions', 'quadratic'];
 
@@ -47,13 +69,93 @@ function space(spec: DesignSpec): FactorSpace {
   return { factors: spec.factors, constraints: spec.constraints, disallowed: spec.disallowed };
 }
 
-function construct(spec: DesignSpec, model: StandardModel, notes: string[]): CodedRun[] {
+/** What a construction adds to the diagnostics besides the runs. */
+type Extras = Pick<DesignDiagnostics, 'fraction' | 'axialDistance'>;
+
+function replicate(runs: CodedRun[], replicates: number | undefined): CodedRun[] {
+  const r = replicates ?? 1;
+  if (!Number.isInteger(r) || r < 1) throw invalidInput('replicates', 'replicates must be a whole number of at least 1');
+  const out: CodedRun[] = [];
+  for (let i = 0; i < r; i++) for (const run of runs) out.push({ ...run, coded: run.coded.slice() });
+  return out;
+}
+
+function withCentres(factors: readonly Factor[], runs: CodedRun[], centerPoints: number | undefined): CodedRun[] {
+  const n0 = centerPoints ?? 0;
+  if (!Number.isInteger(n0) || n0 < 0) throw invalidInput('centerPoints', 'centerPoints must be a whole number of at least 0');
+  return [...runs, ...centreRuns(factors, n0)];
+}
+
+/** Describe a two-level fraction for the diagnostics. */
+export function summariseFraction(factors: readonly Factor[], generators: readonly Generator[]): FractionSummary {
+  const k = factors.length;
+  const st = fractionStructure(k, generators);
+  const wlp: Record<string, number> = {};
+  st.wordLengthPattern.forEach((c, len) => {
+    if (c > 0) wlp[String(len)] = c;
+  });
+  const letters: Record<string, string> = {};
+  factors.forEach((f, i) => (letters[FACTOR_LETTERS[i]!] = f.name));
+  return {
+    generators: generators.map((g) => `${FACTOR_LETTERS[g.target]}=${g.sign < 0 ? '-' : ''}${wordLetters(g.mask)}`),
+    letters,
+    definingRelation: st.words.map((w) => (w.sign < 0 ? '-' : '') + wordLetters(w.mask)),
+    resolution: Number.isFinite(st.resolution) ? st.resolution : k + 1,
+    wordLengthPattern: wlp,
+    aliases: aliasList(k, st.words, factors.map((f) => f.name)),
+  };
+}
+
+function fractionalFactorial(spec: DesignSpec, model: StandardModel, extras: Extras): CodedRun[] {
+  const { factors } = spec;
+  assertTwoLevel(factors, 'fractional factorial');
+  const k = factors.length;
+  if (spec.resolution !== undefined && (!Number.isInteger(spec.resolution) || spec.resolution < 3)) {
+    throw invalidInput('resolution', 'resolution must be a whole number of at least 3 (III)');
+  }
+  let generators: Generator[];
+  if (spec.generators?.length) {
+    generators = parseGenerators(spec.generators, factors.map((f) => f.name));
+    if (spec.resolution !== undefined) {
+      const r = fractionStructure(k, generators).resolution;
+      if (r < spec.resolution) throw invalidInput('generators', `these generators give resolution ${r}, below the ${spec.resolution} asked for`);
+    }
+  } else if (spec.resolution === undefined && spec.runs !== undefined) {
+    // The highest resolution the run count allows.
+    let found: Generator[] | null = null;
+    for (let r = k; r >= 3 && !found; r--) {
+      try {
+        found = chooseFraction(k, r, spec.runs);
+      } catch (e) {
+        if (!(e instanceof DomainError) || e.field !== 'resolution') throw e;
+      }
+    }
+    if (!found) throw new DomainError('unsupported', `${spec.runs} runs give no fraction of resolution III or more for ${k} factors`, 'runs');
+    generators = found;
+  } else {
+    const resolution = spec.resolution ?? (model === 'main-effects' ? 4 : 5);
+    generators = chooseFraction(k, resolution, spec.runs);
+  }
+  extras.fraction = summariseFraction(factors, generators);
+  const coded = fractionRuns(k, generators).map((row) => ({ coded: row.map((pm, j) => twoLevelCoded(factors[j]!, pm)) }));
+  return withCentres(factors, replicate(coded, spec.replicates), spec.centerPoints);
+}
+
+function construct(spec: DesignSpec, model: StandardModel, notes: string[], extras: Extras): CodedRun[] {
   const { factors } = spec;
   switch (spec.method) {
     case 'full-factorial':
       return fullFactorialDesign(factors, { model, replicates: spec.replicates, centerPoints: spec.centerPoints });
+    case 'fractional-factorial':
+      return fractionalFactorial(spec, model, extras);
+    case 'plackett-burman': {
+      assertTwoLevel(factors, 'Plackett–Burman');
+      const rows = plackettBurmanDesign(factors.length, spec.runs).map((row) => ({ coded: row.map((pm, j) => twoLevelCoded(factors[j]!, pm)) }));
+      return withCentres(factors, replicate(rows, spec.replicates), spec.centerPoints);
+    }
     case 'central-composite': {
       const d = centralCompositeDesign(factors, { alpha: spec.alpha, centerPoints: spec.centerPoints, replicates: spec.replicates });
+      extras.axialDistance = d.alpha;
       if (d.alpha > 1 + 1e-12) {
         notes.push(`axial runs sit at ±${d.alpha.toFixed(4)} in coded units, beyond the factor ranges; check the rig can reach them`);
       } else if (d.alpha < 1 - 1e-12) {
@@ -101,7 +203,8 @@ export function generateDesign(spec: DesignSpec): DesignResult {
     }
     return { order: 0, values: naturalValues(spec.factors, coded), coded, existing: true };
   });
-  const fresh = construct(spec, model, notes);
+  const extras: Extras = {};
+  const fresh = construct(spec, model, notes, extras);
   assertFeasible(spec, fresh);
   const ordered = randomiseRunOrder(fresh, seededRandom(seed));
   const runs: DesignRun[] = [
@@ -115,6 +218,6 @@ export function generateDesign(spec: DesignSpec): DesignResult {
   ];
   runs.forEach((r, i) => (r.order = i + 1));
   const terms = standardTerms(spec.factors, model);
-  const diagnostics = designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes);
+  const diagnostics: DesignDiagnostics = { ...designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes), ...extras };
   return { runs, diagnostics, method: spec.method, model, terms: terms.map((t) => t.label), seed };
 }

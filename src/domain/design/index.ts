@@ -6,3 +6,6 @@ export { fullFactorialDesign, centreRuns } from './full-factorial';
 export { centralCompositeDesign, rotatableAlpha, orthogonalAlpha, DEFAULT_CCD_CENTRE_RUNS } from './central-composite';
 export { randomiseRunOrder } from './randomise';
 export { designDiagnostics, assertEstimable } from './diagnostics';
+export * from './fractional-factorial';
+export * from './plackett-burman';
+export { summariseFraction } from './generate';

@@ -78,6 +78,24 @@ export interface DesignDiagnostics {
   errorDegreesOfFreedom: number;
   /** Plain-language remarks (e.g. axial points beyond the factor range). */
   notes: string[];
+  /** Two-level fractions: generators, defining relation, word-length pattern and aliases. */
+  fraction?: FractionSummary;
+  /** Central composite designs: the axial distance in coded units. */
+  axialDistance?: number;
+}
+
+export interface FractionSummary {
+  /** Generators in letters, e.g. "E=ABC" (factors lettered A, B, C ... in order, skipping I). */
+  generators: string[];
+  /** Factor letter → factor name. */
+  letters: Record<string, string>;
+  /** Words of the defining relation I = ..., in letters, with "-" for a negative word. */
+  definingRelation: string[];
+  resolution: number;
+  /** Number of words of each length, keyed by length (3, 4, ...). */
+  wordLengthPattern: Record<string, number>;
+  /** For each main effect and two-factor interaction, the others it is aliased with. */
+  aliases: { effect: string; aliases: string[] }[];
 }
 
 export interface DesignResult {
