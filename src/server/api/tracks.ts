@@ -1,0 +1,55 @@
+/**
+ * `POST /api/v1/tracks/metrics`: a motion-track CSV in the body, the column mapping and units in the
+ * query string; answers per-hop metrics in SI units.
+ */
+import { z } from 'zod';
+import { invalidInput } from '@/domain/errors';
+import { trackMetrics, type TrackMetrics } from '@/domain/tracks';
+import { parseWith } from './validation';
+
+/** Largest track body accepted, bytes (a minute at 1 kHz is about 2.5 MB). */
+export const MAX_TRACK_BYTES = 64 * 1024 * 1024;
+
+const columnName = z.string().trim().min(1, 'give the column name as it appears in the CSV header');
+
+/** An optional number given as a query-string value; blank means absent. */
+const optionalNumber = z
+  .string()
+  .trim()
+  .optional()
+  .transform((s, ctx) => {
+    if (s === undefined || s === '') return undefined;
+    const v = Number(s);
+    if (!Number.isFinite(v)) {
+      ctx.addIssue({ code: 'custom', message: `'${s}' is not a number` });
+      return z.NEVER;
+    }
+    return v;
+  });
+
+export const trackQuerySchema = z.object({
+  time: columnName,
+  x: columnName,
+  y: columnName,
+  z: columnName,
+  lengthUnit: z.enum(['m', 'cm', 'mm'], { message: "use 'm', 'cm' or 'mm'" }),
+  timeUnit: z.enum(['s', 'ms'], { message: "use 's' or 'ms'" }),
+  massGrams: optionalNumber.refine((v) => v === undefined || v > 0, 'the mass must be > 0 g'),
+  energyJoules: optionalNumber.refine((v) => v === undefined || v >= 0, 'the energy must be ≥ 0 J'),
+  targetX: optionalNumber,
+  targetY: optionalNumber,
+  flightThreshold: optionalNumber.refine((v) => v === undefined || v > 0, 'the flight threshold must be > 0'),
+  gravityTolerance: optionalNumber.refine((v) => v === undefined || (v > 0 && v < 1), 'the gravity tolerance is a fraction in (0, 1)'),
+});
+
+export type TrackQuery = z.output<typeof trackQuerySchema>;
+
+/** Parse the query, run the track through the metrics; domain errors name the field at fault. */
+export function handleTrackMetrics(csv: string, query: URLSearchParams): TrackMetrics {
+  const raw: Record<string, string> = {};
+  for (const [key, value] of query) raw[key] = value;
+  const q = parseWith(trackQuerySchema, raw);
+  if (csv.trim() === '') throw invalidInput('(body)', 'the request body is empty; send the track as CSV text with a header line');
+  const options = Object.fromEntries(Object.entries(q).filter(([, v]) => v !== undefined)) as TrackQuery;
+  return trackMetrics(csv, options);
+}
