@@ -35,8 +35,34 @@ export function chisqQuantile(p: number, df: number): number {
 export function normalCdf(x: number, mean = 0, sd = 1): number {
   return normalCdfImpl(x, mean, sd);
 }
+/** Standard normal lower quantile for 0 < p ≤ 0.5, polished by Halley steps on the accurate cdf. */
+function standardNormalLowerQuantile(p: number): number {
+  let x = normalQuantileImpl(p, 0, 1);
+  if (!Number.isFinite(x)) {
+    // The library's erfinv form saturates below p ≈ 1e-17: start from the tail asymptote instead.
+    const l = -2 * Math.log(p);
+    x = -Math.sqrt(l - Math.log(l) - Math.log(2 * Math.PI));
+  }
+  for (let it = 0; it < 3; it++) {
+    const e = normalCdfImpl(x, 0, 1) - p;
+    const u = e * Math.exp((x * x) / 2 + 0.5 * Math.log(2 * Math.PI));
+    if (!Number.isFinite(u) || u === 0) break;
+    x -= u / (1 + (x * u) / 2);
+    if (Math.abs(u) < 1e-15 * Math.abs(x)) break;
+  }
+  return x;
+}
+
+/**
+ * Normal quantile: the library's value polished by Halley steps on the cdf, which brings the far
+ * tails (where the library's erfinv form loses digits or saturates) to full precision.
+ */
 export function normalQuantile(p: number, mean = 0, sd = 1): number {
-  return normalQuantileImpl(p, mean, sd);
+  if (Number.isNaN(p) || p < 0 || p > 1) return NaN;
+  if (p === 0) return -Infinity;
+  if (p === 1) return Infinity;
+  const z = p <= 0.5 ? standardNormalLowerQuantile(p) : -standardNormalLowerQuantile(1 - p);
+  return mean + sd * z;
 }
 
 /** Two-sided p-value of a t statistic: P(|T| ≥ |t|), computed in the tail without cancellation. */
