@@ -11,7 +11,13 @@ as_pg() { if [ "$(id -u)" = 0 ]; then runuser -u postgres -- "$@"; else "$@"; fi
 case "$cmd" in
   start)
     mkdir -p "$dir"
-    [ "$(id -u)" = 0 ] && chown postgres "$dir"
+    if [ "$(id -u)" = 0 ]; then
+      chown postgres "$dir"
+      runuser -u postgres -- test -w "$dir" || {
+        echo "user postgres cannot reach $dir (a parent folder is private?); use a folder directly under /tmp" >&2
+        exit 1
+      }
+    fi
     if [ ! -f "$dir/PG_VERSION" ]; then
       as_pg "$bin/initdb" -D "$dir" -U saltus --auth=trust -E UTF8 --locale=C.UTF-8 >/dev/null
     fi
