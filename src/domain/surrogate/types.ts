@@ -1,0 +1,60 @@
+/** Shapes of a next-trials request and its answer (the API body of POST /api/v1/suggestions). */
+import type { DisallowedCombination, Factor, FactorValue, LinearConstraint, Point } from '../factors';
+import type { KernelKind } from './kernels';
+
+export type SuggestionStrategy = 'improve' | 'explore' | 'refine' | 'confirm';
+
+/** One observed trial: factor values in natural units keyed by factor name, the response column, and an optional failed flag. */
+export type SuggestionDataRow = Record<string, FactorValue | boolean | null | undefined> & { failed?: boolean };
+
+export interface SuggestionRequest {
+  factors: Factor[];
+  data: SuggestionDataRow[];
+  /** Name of the response column in the data rows. */
+  response: string;
+  goal: 'maximize' | 'minimize';
+  /** How many trials to suggest. */
+  count: number;
+  strategy?: SuggestionStrategy;
+  /** Minutes it costs to change the level of a hard-to-change factor. */
+  swapCost?: Record<string, number>;
+  /** Lowest acceptable probability that a suggested trial does not fail. */
+  feasibilityThreshold?: number;
+  seed?: number;
+  constraints?: LinearConstraint[];
+  disallowed?: DisallowedCombination[];
+  kernel?: KernelKind;
+}
+
+export interface Suggestion {
+  /** Factor values in natural units. */
+  values: Point;
+  /** Predicted response (posterior mean), response units. */
+  mean: number;
+  /** Posterior standard deviation of the mean response at this point. */
+  sd: number;
+  /** Value of the strategy's acquisition function (expected improvement in response units for "improve"). */
+  acquisition: number;
+  /** Probability that the trial does not fail, when failed trials were given. */
+  feasibility?: number;
+  /** One line a person can read: why this trial. */
+  reason: string;
+}
+
+export interface SurrogateSummary {
+  kernel: KernelKind;
+  /** Length scale per factor, in coded units (numeric factors span [-1, 1]). */
+  lengthScales: Record<string, number>;
+  /** Estimated noise variance, squared response units. */
+  noiseVariance: number;
+  /** Signal (process) variance, squared response units. */
+  signalVariance: number;
+  logMarginalLikelihood: number;
+  /** Observations the surrogate was fitted to (failed trials excluded). */
+  observations: number;
+}
+
+export interface SuggestionResult {
+  suggestions: Suggestion[];
+  model: SurrogateSummary;
+}
