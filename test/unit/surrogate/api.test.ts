@@ -1,0 +1,55 @@
+import { describe, expect, it } from 'vitest';
+import { handleSuggestionRequest } from '@/server/api/suggestions';
+import { POST } from '@/app/api/v1/suggestions/route';
+
+// Invented scenario: take-off speed (m/s) against spring preload and payload.
+const body = {
+  factors: [
+    { name: 'preload', kind: 'continuous', low: 1, high: 5, unit: 'mm' },
+    { name: 'payload', kind: 'continuous', low: 0, high: 2, unit: 'g' },
+  ],
+  data: [
+    { preload: 1, payload: 0, speed: 0.9 },
+    { preload: 5, payload: 0, speed: 1.6 },
+    { preload: 1, payload: 2, speed: 0.5 },
+    { preload: 5, payload: 2, speed: 1.1 },
+    { preload: 3, payload: 1, speed: 1.25 },
+    { preload: 3, payload: 1, speed: 1.2 },
+    { preload: 4, payload: 0.5, speed: 1.45, failed: false },
+    { preload: 5, payload: 1.8, failed: true },
+  ],
+  response: 'speed',
+  goal: 'maximize',
+  count: 3,
+  seed: 4,
+};
+
+describe('POST /api/v1/suggestions', () => {
+  it('answers suggestions and the model summary', async () => {
+    const res = await POST(new Request('http://x/api/v1/suggestions', { method: 'POST', body: JSON.stringify(body) }));
+    expect(res.status).toBe(200);
+    const json = (await res.json()) as ReturnType<typeof handleSuggestionRequest>;
+    expect(json.suggestions).toHaveLength(3);
+    expect(Object.keys(json.suggestions[0]!)).toEqual(expect.arrayContaining(['values', 'mean', 'sd', 'acquisition', 'reason']));
+    expect(Object.keys(json.model.lengthScales)).toEqual(['preload', 'payload']);
+    expect(typeof json.model.logMarginalLikelihood).toBe('number');
+    expect(json.model.observations).toBe(7);
+  });
+
+  it('maps invalid input to a 400 naming the field', async () => {
+    const res = await POST(new Request('http://x/api/v1/suggestions', { method: 'POST', body: JSON.stringify({ ...body, goal: 'target' }) }));
+    expect(res.status).toBe(400);
+    const json = (await res.json()) as { error: { field: string; code: string } };
+    expect(json.error.field).toBe('goal');
+    expect(() => handleSuggestionRequest({ ...body, count: 2.5 })).toThrow(/whole number/);
+    expect(() => handleSuggestionRequest({ ...body, factors: [{ name: 'x', kind: 'ordinal' }] })).toThrow();
+  });
+
+  it('answers 422 when the constraints leave no feasible point', async () => {
+    const res = await POST(new Request('http://x/api/v1/suggestions', {
+      method: 'POST',
+      body: JSON.stringify({ ...body, constraints: [{ terms: { preload: 1 }, max: 0 }] }),
+    }));
+    expect(res.status).toBe(422);
+  });
+});
