@@ -103,3 +103,29 @@ export function productRemainder(factors: ArrayLike<number>, rounded: number): n
   for (let i = 0; i < factors.length; i++) [hi, lo] = ddTimes(hi, lo, factors[i]!);
   return (hi - rounded) + lo;
 }
+
+/**
+ * The decimal a number was written as (its shortest round-trip form, e.g. 1000000000000.4) minus
+ * the double that holds it: the low-order part that lets sums treat data as the decimals entered.
+ * Returns 0 when the decimal has more than 15 significant digits or an exponent out of easy reach.
+ */
+export function decimalRemainder(v: number): number {
+  if (!Number.isFinite(v) || Number.isInteger(v)) return 0;
+  const m = /^(-?)(\d+)(?:\.(\d+))?(?:e([+-]\d+))?$/.exec(String(v));
+  if (!m) return 0;
+  const digits = (m[2]! + (m[3] ?? '')).replace(/^0+/, '');
+  const k = (m[3]?.length ?? 0) - Number(m[4] ?? 0);
+  if (digits.length > 15 || k <= 0 || k > 22) return 0;
+  const mant = Number(digits) * (m[1] ? -1 : 1); // exact: at most 15 digits
+  const pow = Math.pow(10, k); // exact for k ≤ 22
+  // mant − v·pow exactly, by TwoProduct; then divide by pow.
+  const h = v * pow;
+  let c = SPLITTER * v;
+  const vh = c - (c - v);
+  const vl = v - vh;
+  c = SPLITTER * pow;
+  const ph = c - (c - pow);
+  const pl = pow - ph;
+  const err = vl * pl - (((h - vh * ph) - vl * ph) - vh * pl);
+  return ((mant - h) - err) / pow;
+}

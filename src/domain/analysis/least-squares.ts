@@ -9,7 +9,7 @@
 import { dot2 } from './compensated';
 
 export interface LeastSquaresOptions {
-  /** A pivot |R_kk| at or below rankTolerance·|R_00| (on scaled columns) marks the rank. */
+  /** A column whose part not explained by the columns before it is at or below rankTolerance of its norm is aliased. */
   rankTolerance?: number;
   /** Refinement steps for the coefficients (default 1, or 3 when ill-conditioned; 0 turns refinement off). */
   refinementSteps?: number;
@@ -102,6 +102,7 @@ export function pivotedQr(x: Float64Array, n: number, p: number, rankTolerance?:
     norms[j] = Math.sqrt(ss2);
     original[j] = norms[j]!;
   }
+  const colNorm = Float64Array.from(norms);
   const m = Math.min(n, p);
   const v0 = new Float64Array(m);
   const beta = new Float64Array(m);
@@ -109,27 +110,30 @@ export function pivotedQr(x: Float64Array, n: number, p: number, rankTolerance?:
   const tol = rankTolerance ?? Math.max(n, p) * 1e-15;
   const sqrtEps = Math.sqrt(2.220446049250313e-16);
   let rank = 0;
-  let first = 0;
   for (let k = 0; k < m; k++) {
-    // Pivot: the largest remaining norm; ties (within 1e-10) go to the earliest position, so
-    // exactly aliased columns later in the term list are the ones declared aliased.
+    // Pivot: the column with the largest share of its norm not yet explained by the columns chosen
+    // (a scale-free choice); ties (within 1e-10) go to the earliest position, so in a design with
+    // orthogonal columns the term order is kept and aliased columns later in the list are dropped.
     let best = k;
-    let bestNorm = norms[k]!;
-    for (let j = k + 1; j < p; j++) if (norms[j]! > bestNorm * (1 + 1e-10)) { best = j; bestNorm = norms[j]!; }
+    let bestShare = colNorm[k]! > 0 ? norms[k]! / colNorm[k]! : 0;
+    for (let j = k + 1; j < p; j++) {
+      const share = colNorm[j]! > 0 ? norms[j]! / colNorm[j]! : 0;
+      if (share > bestShare * (1 + 1e-10)) { best = j; bestShare = share; }
+    }
     if (best !== k) {
       const ok = k * n;
       const ob = best * n;
       for (let i = 0; i < n; i++) { const t = a[ok + i]!; a[ok + i] = a[ob + i]!; a[ob + i] = t; }
       let t = norms[k]!; norms[k] = norms[best]!; norms[best] = t;
       t = original[k]!; original[k] = original[best]!; original[best] = t;
+      t = colNorm[k]!; colNorm[k] = colNorm[best]!; colNorm[best] = t;
       const pt = pivot[k]!; pivot[k] = pivot[best]!; pivot[best] = pt;
     }
     const off = k * n;
     let ss = 0;
     for (let i = k; i < n; i++) ss += a[off + i]! * a[off + i]!;
     const xnorm = Math.sqrt(ss);
-    if (k === 0) first = xnorm;
-    if (xnorm === 0 || xnorm <= tol * first) break;
+    if (xnorm === 0 || xnorm <= tol * colNorm[k]!) break;
     const x0 = a[off + k]!;
     const alpha = x0 >= 0 ? -xnorm : xnorm;
     const v0k = x0 - alpha;
@@ -342,7 +346,8 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
     const ki = posOf.get(basis[i]!)!;
     for (let j = 0; j < rank; j++) {
       const kj = posOf.get(basis[j]!)!;
-      unscaledCovariance[i * rank + j] = cov[ki * rank + kj]! / (scale[basis[i]!]! * scale[basis[j]!]!);
+      // Average the two triangles: rounding leaves them a few ulps apart.
+      unscaledCovariance[i * rank + j] = (0.5 * (cov[ki * rank + kj]! + cov[kj * rank + ki]!)) / (scale[basis[i]!]! * scale[basis[j]!]!);
     }
   }
   const fitted = new Float64Array(n);

@@ -5,7 +5,7 @@
  * and the total; R², adjusted R² and the residual standard error.
  */
 import { CholeskyDecomposition, Matrix } from 'ml-matrix';
-import { accurateMean, sumOfSquaredDeviations } from './compensated';
+import { accurateMean, decimalRemainder, sumOfSquaredDeviations } from './compensated';
 import { fUpperP, tQuantile, tTwoSidedP } from './distributions';
 import { leastSquares, type LeastSquaresFit, type LeastSquaresOptions } from './least-squares';
 import type { ModelFrame } from './model-frame';
@@ -54,7 +54,7 @@ function partialSs(fit: LeastSquaresFit, positions: number[]): number {
 }
 
 /** Pure-error sum of squares from runs that share the same factor setting. */
-function pureError(frame: ModelFrame): { ss: number; df: number; groups: number } {
+function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number; groups: number } {
   const groups = new Map<string, number[]>();
   frame.points.forEach((pt, i) => {
     const key = Array.from(pt).join('|');
@@ -65,15 +65,45 @@ function pureError(frame: ModelFrame): { ss: number; df: number; groups: number 
   let ss = 0;
   for (const idx of groups.values()) {
     if (idx.length < 2) continue;
-    const ys = idx.map((i) => frame.y[i]!);
+    const ys = idx.map((i) => y[i]!);
     ss += sumOfSquaredDeviations(ys, accurateMean(ys));
   }
   return { ss, df: frame.n - groups.size, groups: groups.size };
 }
 
+/**
+ * y − shift; when the data share many leading digits (spread below 1e-4 of the level), each value
+ * is taken as the decimal it was written as, so its low-order digits survive the subtraction.
+ */
+function shiftedResponse(y: Float64Array, shift: number): Float64Array {
+  const out = y.map((v) => v - shift);
+  let ss = 0;
+  for (const d of out) ss += d * d;
+  const rms = Math.sqrt(ss / out.length);
+  if (Math.abs(shift) > 1e4 * rms) {
+    for (let i = 0; i < y.length; i++) out[i] = out[i]! + decimalRemainder(y[i]!);
+  }
+  return out;
+}
+
 export function fitLinearModel(frame: ModelFrame, options: LeastSquaresOptions = {}): LinearModelFit {
   const { n, p, model, intercept } = frame;
-  const fit = leastSquares(frame.x, frame.y, n, p, { xLow: frame.lowParts, ...options });
+  // With an intercept, fit y − shift (shift ≈ ȳ): an exact or nearly exact subtraction that keeps
+  // data with many constant leading digits (e.g. 1000000000000.4) from losing them in the sums.
+  let shift = intercept ? accurateMean(frame.y) : 0;
+  let yShifted = shift === 0 ? frame.y : shiftedResponse(frame.y, shift);
+  let fit = leastSquares(frame.x, yShifted, n, p, { xLow: frame.lowParts, ...options });
+  if (shift !== 0 && !fit.basis.includes(0)) {
+    // The intercept column itself was judged aliased: fit the data as they are.
+    shift = 0;
+    yShifted = frame.y;
+    fit = leastSquares(frame.x, yShifted, n, p, { xLow: frame.lowParts, ...options });
+  }
+  const shiftedFitted = fit.fitted;
+  if (shift !== 0) {
+    fit.fitted = shiftedFitted.map((v) => v + shift);
+    fit.coefficients[0] += shift;
+  }
   const rank = fit.rank;
   const residualDf = n - rank;
   const rss = fit.residualSumOfSquares;
@@ -100,9 +130,9 @@ export function fitLinearModel(frame: ModelFrame, options: LeastSquaresOptions =
   const aliased = fit.aliased.map((col) => model.labels[col]!);
 
   // Sums of squares: total about the mean (or about zero without an intercept), model from the fitted values.
-  const ybar = intercept ? accurateMean(frame.y) : 0;
-  const totalSs = sumOfSquaredDeviations(frame.y, ybar);
-  const modelSs = sumOfSquaredDeviations(fit.fitted, ybar);
+  const ybar = intercept ? accurateMean(yShifted) : 0;
+  const totalSs = sumOfSquaredDeviations(yShifted, ybar);
+  const modelSs = sumOfSquaredDeviations(shiftedFitted, ybar);
   const interceptInBasis = intercept && fit.basis.includes(0);
   const modelDf = rank - (interceptInBasis ? 1 : 0);
   const totalDf = n - (intercept ? 1 : 0);
@@ -129,7 +159,7 @@ export function fitLinearModel(frame: ModelFrame, options: LeastSquaresOptions =
   });
   anova.push({ source: 'Residual', df: residualDf, ss: rss, ms: hasError ? mse : null, f: null, p: null });
   let lackOfFit: LackOfFit | undefined;
-  const pe = pureError(frame);
+  const pe = pureError(frame, yShifted);
   const lofDf = residualDf - pe.df;
   if (pe.df > 0 && lofDf > 0) {
     const lofSs = Math.max(0, rss - pe.ss);
