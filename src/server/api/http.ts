@@ -64,3 +64,18 @@ export function jsonPost<T>(handler: (body: unknown, req: Request) => T | Promis
     }
   };
 }
+
+type Params = Record<string, string>;
+type Ctx = { params: Promise<Params> };
+
+/** Wrap any handler with route params: errors mapped to 4xx JSON, results to 200 (or the given status). */
+export function route<T>(handler: (req: Request, params: Params) => Promise<T | Response>, status = 200) {
+  return async (req: Request, ctx: Ctx): Promise<Response> => {
+    try {
+      const result = await handler(req, await ctx.params);
+      return result instanceof Response ? result : jsonResponse(result, status);
+    } catch (e) {
+      return errorResponse(e);
+    }
+  };
+}

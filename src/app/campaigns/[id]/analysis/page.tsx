@@ -1,0 +1,28 @@
+import { notFound } from 'next/navigation';
+import { AnalysisPanel } from '@/components/AnalysisPanel';
+import type { AnalysisViewData } from '@/components/AnalysisView';
+import { CampaignNav } from '@/components/CampaignNav';
+import { isDomainError } from '@/domain/errors';
+import { latestAnalysis } from '@/server/repos/analyses';
+import { getCampaign } from '@/server/repos/campaigns';
+
+export const dynamic = 'force-dynamic';
+
+export default async function AnalysisPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const campaign = await getCampaign(id).catch((e) => {
+    if (isDomainError(e) && e.code === 'not_found') notFound();
+    throw e;
+  });
+  const latest = await latestAnalysis(id);
+  return (
+    <>
+      <CampaignNav id={id} current="/analysis" name={campaign.name} isDemo={campaign.isDemo} />
+      <p className="muted">
+        Least squares by Householder QR with column pivoting on the logged trials, factors in coded units. Each fit is stored with
+        the data it used.
+      </p>
+      <AnalysisPanel campaignId={id} responses={campaign.responses.map((r) => r.name)} initial={latest as AnalysisViewData | null} />
+    </>
+  );
+}

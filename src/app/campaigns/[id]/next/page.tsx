@@ -1,0 +1,44 @@
+import { notFound } from 'next/navigation';
+import { CampaignNav } from '@/components/CampaignNav';
+import { NextTrialPanel } from '@/components/NextTrialPanel';
+import { isDomainError } from '@/domain/errors';
+import { getCampaign } from '@/server/repos/campaigns';
+import { listSuggestions } from '@/server/repos/suggestions';
+
+export const dynamic = 'force-dynamic';
+
+export default async function NextTrialsPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const campaign = await getCampaign(id).catch((e) => {
+    if (isDomainError(e) && e.code === 'not_found') notFound();
+    throw e;
+  });
+  const suggestions = await listSuggestions(id);
+  const units = Object.fromEntries(campaign.factors.map((f) => [f.name, f.unit ?? '']));
+  return (
+    <>
+      <CampaignNav id={id} current="/next" name={campaign.name} isDemo={campaign.isDemo} />
+      <p className="muted">
+        The next trial is the setting the campaign&apos;s runs know least about: the candidate with the largest prediction variance
+        under the chosen model. Accepting it adds a run to the campaign.
+      </p>
+      <NextTrialPanel campaignId={id} units={units} />
+      {suggestions.length ? (
+        <section className="panel">
+          <h2 style={{ marginTop: 0 }}>Earlier proposals</h2>
+          <ul>
+            {suggestions.map((s) => (
+              <li key={s.id}>
+                <strong>{s.status}</strong>{' '}
+                {Object.entries(s.values)
+                  .map(([k, v]) => `${k} ${typeof v === 'number' ? Number(v.toPrecision(4)) : v}`)
+                  .join(' · ')}{' '}
+                — <span className="muted">{s.reason}</span>
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
+    </>
+  );
+}

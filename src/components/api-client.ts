@@ -1,0 +1,35 @@
+'use client';
+/** Browser-side calls to the JSON API; errors come back with the field they name. */
+
+export interface ApiError {
+  code: string;
+  message: string;
+  field: string | null;
+  details?: unknown;
+}
+
+export type ApiResult<T> = { ok: true; data: T; status: number } | { ok: false; error: ApiError; status: number };
+
+export async function callApi<T>(url: string, method: 'GET' | 'POST', body?: unknown, headers: Record<string, string> = {}): Promise<ApiResult<T>> {
+  let res: Response;
+  try {
+    res = await fetch(url, {
+      method,
+      headers: { 'content-type': 'application/json', ...headers },
+      body: body === undefined ? undefined : JSON.stringify(body),
+    });
+  } catch {
+    return { ok: false, status: 0, error: { code: 'offline', message: 'the server could not be reached; check the network and try again', field: null } };
+  }
+  let json: unknown = null;
+  try {
+    json = await res.json();
+  } catch {
+    /* empty or non-JSON answer */
+  }
+  if (res.ok) return { ok: true, data: json as T, status: res.status };
+  const err = (json as { error?: ApiError } | null)?.error;
+  return { ok: false, status: res.status, error: err ?? { code: 'http_' + res.status, message: `the server answered ${res.status}`, field: null } };
+}
+
+export const postJson = <T,>(url: string, body: unknown, headers?: Record<string, string>) => callApi<T>(url, 'POST', body, headers);
