@@ -3,37 +3,10 @@
  * assembly of the answer (assignments, activities, counts, bounds, what did not fit and why).
  */
 import { changeoverLowerBound, makespanLowerBound, minimumRigTimeMs } from './bounds';
-import { MINUTE, prepare, type Prepared, type Unit } from './prepare';
-import { emptyRigState, placeUnit, type RigState } from './rig-timeline';
+import { MINUTE, prepare, type Prepared } from './prepare';
+import { groupedPlan } from './grouped';
+import { sequentialFill, type RigPlan } from './sequential';
 import type { Infeasibility, LevelValue, RigActivity, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
-
-/** Outcome of a strategy: one timeline per rig and the units that found no place. */
-export interface RigPlan {
-  states: RigState[];
-  unplaced: Unit[];
-  notes: string[];
-}
-
-/**
- * Sequential fill: whole plots (and loose runs) in design order, each onto the rig where it would
- * finish first (list scheduling; ties go to fewer changeover minutes, then to the earlier rig).
- */
-export function sequentialFill(p: Prepared, units: readonly Unit[] = p.units, initial?: RigState[]): RigPlan {
-  const states = initial ?? p.rigs.map(emptyRigState);
-  const unplaced: Unit[] = [];
-  for (const unit of units) {
-    let best: { state: RigState; rig: number; end: number } | undefined;
-    for (let r = 0; r < states.length; r++) {
-      const next = placeUnit(states[r]!, unit, p);
-      if (!next) continue;
-      const end = next.lastEnd;
-      if (!best || end < best.end) best = { state: next, rig: r, end };
-    }
-    if (best) states[best.rig] = best.state;
-    else unplaced.push(unit);
-  }
-  return { states, unplaced, notes: [] };
-}
 
 function minutes(ms: number): number {
   return Math.round((ms / MINUTE) * 1000) / 1000;
@@ -166,6 +139,6 @@ export function assembleResult(p: Prepared, plan: RigPlan): ScheduleResult {
 /** Place a campaign's runs onto rigs. Pure: the same request gives the same schedule. */
 export function planSchedule(request: ScheduleRequest): ScheduleResult {
   const p = prepare(request);
-  const plan = sequentialFill(p);
+  const plan = request.strategy === 'sequential' ? sequentialFill(p) : groupedPlan(p);
   return assembleResult(p, plan);
 }

@@ -30,6 +30,8 @@ export interface Unit {
   workMs: number;
   /** Calendar window the unit must lie in (block pinned to a day), or none. */
   window?: MsInterval & { day: string; block: string };
+  /** Rig the unit must use (the rest of a whole plot already started there, when re-planning). */
+  rigIndex?: number;
 }
 
 export interface ChangeoverFactor {

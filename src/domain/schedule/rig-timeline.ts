@@ -1,7 +1,8 @@
 /**
  * One rig's timeline, filled front to back: each trial goes at the earliest instant after the
- * previous one where its upkeep, its changeover and the trial itself fit inside one available
- * interval (and inside its block's day, when pinned), with the cool-down respected.
+ * previous one where it fits inside an available interval (and inside its block's day, when pinned),
+ * after its upkeep and changeover (each inside an available interval, possibly an earlier one, e.g. a
+ * surface swap at the end of the day) and after the cool-down.
  */
 import type { MsInterval } from './calendar';
 import type { Prepared, PreparedRig, PreparedRun, Unit } from './prepare';
@@ -80,35 +81,45 @@ export function placeRun(state: RigState, run: PreparedRun, p: Prepared, window?
   const setupMs = upkeepMs + changeMs;
 
   const intervals = state.rig.intervals;
+  const lo = window ? window.start : -Infinity;
+  const hi = window ? window.end : Infinity;
+  // Setup (upkeep, then changeover) goes in the first interval with room for it; the trial follows in
+  // the same interval or a later one. A setup of zero length sits right before the trial.
   for (let i = state.intervalIndex; i < intervals.length; i++) {
     const iv = intervals[i]!;
     if (iv.end <= state.cursor) continue;
-    if (window && iv.start >= window.end) return false;
-    const setupStart = Math.max(state.cursor, iv.start, window ? window.start : -Infinity);
-    const start = Math.max(setupStart + setupMs, state.lastEnd + p.cooldownMs);
-    const end = start + run.durationMs;
-    const limit = window ? Math.min(iv.end, window.end) : iv.end;
-    if (end > limit) continue;
-
-    const activities: PlacedActivity[] = [];
-    let t = start - setupMs;
-    if (upkeepMs > 0) {
-      activities.push({ kind: 'upkeep', start: t, end: t + upkeepMs });
-      t += upkeepMs;
+    if (iv.start >= hi) return false;
+    const setupStart = Math.max(state.cursor, iv.start, lo);
+    if (setupStart + setupMs > Math.min(iv.end, hi)) continue;
+    const setupEnd = setupStart + setupMs;
+    for (let j = i; j < intervals.length; j++) {
+      const jv = intervals[j]!;
+      if (jv.start >= hi) return false;
+      const start = Math.max(setupEnd, state.lastEnd + p.cooldownMs, jv.start);
+      const end = start + run.durationMs;
+      if (end > Math.min(jv.end, hi)) continue;
+      const activities: PlacedActivity[] = [];
+      // With the trial in the same interval the setup runs straight into it; otherwise it closes the earlier interval's work.
+      let t = j === i ? start - setupMs : setupStart;
+      if (upkeepMs > 0) {
+        activities.push({ kind: 'upkeep', start: t, end: t + upkeepMs });
+        t += upkeepMs;
+      }
+      if (changed.length > 0 && changeMs > 0) activities.push({ kind: 'changeover', start: t, end: t + changeMs, factors: changed });
+      state.placements.push({ run, rig: state.rig.index, start, end, activities, changes, previousLevels: state.lastLevels.slice() });
+      state.intervalIndex = j;
+      state.cursor = end;
+      state.lastEnd = end;
+      state.lastLevels = run.levels.slice();
+      if (upkeepDue) {
+        state.trialsSinceUpkeep = 0;
+        state.msSinceUpkeep = 0;
+      }
+      state.trialsSinceUpkeep++;
+      state.msSinceUpkeep += run.durationMs;
+      return true;
     }
-    if (changed.length > 0 && changeMs > 0) activities.push({ kind: 'changeover', start: t, end: t + changeMs, factors: changed });
-    state.placements.push({ run, rig: state.rig.index, start, end, activities, changes, previousLevels: state.lastLevels.slice() });
-    state.intervalIndex = i;
-    state.cursor = end;
-    state.lastEnd = end;
-    state.lastLevels = run.levels.slice();
-    if (upkeepDue) {
-      state.trialsSinceUpkeep = 0;
-      state.msSinceUpkeep = 0;
-    }
-    state.trialsSinceUpkeep++;
-    state.msSinceUpkeep += run.durationMs;
-    return true;
+    return false;
   }
   return false;
 }
