@@ -12,6 +12,22 @@ export * from './distributions';
 export { leastSquares, pivotedQr, toColumnMajor, type LeastSquaresFit, type LeastSquaresOptions } from './least-squares';
 export { buildModelFrame, inferFactors, type ModelFrame } from './model-frame';
 export { fitLinearModel, type LinearModelFit } from './linear-model';
+export { predictor, type Predictor } from './predict';
+export {
+  desirability,
+  individualDesirability,
+  maximizeDesirability,
+  type DesirabilityOptimum,
+  type DesirabilityResponse,
+  type DesirabilityValue,
+  type MaximizeDesirabilityOptions,
+} from './desirability';
+
+function covarianceRows(lm: LinearModelFit): number[][] {
+  const r = lm.fit.rank;
+  const v = lm.fit.unscaledCovariance;
+  return Array.from({ length: r }, (_, i) => Array.from({ length: r }, (_, j) => v[i * r + j]! * lm.meanSquaredError));
+}
 
 /** Result fields shared by every gaussian analysis, from a linear model fit. */
 export function resultOfLinearFit(request: AnalysisRequest, lm: LinearModelFit): AnalysisResult {
@@ -34,6 +50,7 @@ export function resultOfLinearFit(request: AnalysisRequest, lm: LinearModelFit):
     residualStdError: lm.residualStdError,
     residualDf: lm.residualDf,
     ...(lm.lackOfFit ? { lackOfFit: lm.lackOfFit } : {}),
+    ...(lm.residualDf > 0 ? { covariance: covarianceRows(lm) } : {}),
     fitted: Array.from(lm.fit.fitted),
     residuals: Array.from(lm.fit.residuals),
     observed: Array.from(frame.y),

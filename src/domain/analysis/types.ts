@@ -77,6 +77,8 @@ export interface AnalysisResult {
   residualStdError: number | null;
   residualDf: number;
   lackOfFit?: LackOfFit;
+  /** Covariance matrix of the estimates (σ̂²·(XᵀX)⁻¹), in coefficient order; absent without residual df. */
+  covariance?: number[][];
   fitted: number[];
   residuals: number[];
   /** Response values of the runs used, in the same order as fitted and residuals. */
