@@ -39,9 +39,6 @@ const SPACE = 32;
 const POW10 = new Float64Array(23);
 for (let k = 0, p = 1; k < 23; k++, p *= 10) POW10[k] = p;
 
-/** Position just after the last parsed character; set by `parseNumber`. */
-let cursor = 0;
-
 function slowNumber(bytes: Uint8Array, start: number, end: number): number {
   let s = '';
   for (let i = start; i < end; i++) s += String.fromCharCode(bytes[i]!);
@@ -49,93 +46,6 @@ function slowNumber(bytes: Uint8Array, start: number, end: number): number {
   if (s === '') return Number.NaN;
   const v = Number(s);
   return Number.isFinite(v) ? v : Number.NaN;
-}
-
-/**
- * Parse a decimal number starting at `start`, stopping at the first byte that cannot continue it;
- * sets `cursor` there. Returns NaN when no digit is found. With at most 15 significant digits and a
- * decimal exponent within ±22 the result is one correctly rounded operation, identical to Number()
- * (Clinger (1990), PLDI, "How to read floating point numbers accurately"); otherwise it falls back to Number().
- */
-function parseNumber(bytes: Uint8Array, start: number, end: number, decimalAlt: number): number {
-  let i = start;
-  let c = bytes[i]!;
-  while (i < end && c === SPACE) c = bytes[++i]!;
-  let negative = false;
-  if (c === 45 /* - */) {
-    negative = true;
-    c = bytes[++i]!;
-  } else if (c === 43 /* + */) c = bytes[++i]!;
-  let mantissa = 0;
-  let digits = 0;
-  let exponent = 0;
-  let sawDigit = false;
-  let exact = true;
-  const numberStart = i;
-  while (i < end && c >= 48 && c <= 57) {
-    sawDigit = true;
-    if (mantissa !== 0 || c !== 48) {
-      if (digits < 15) {
-        mantissa = mantissa * 10 + (c - 48);
-        digits++;
-      } else {
-        exponent++;
-        if (c !== 48) exact = false;
-      }
-    }
-    c = bytes[++i]!;
-  }
-  if (i < end && (c === 46 || c === decimalAlt)) {
-    c = bytes[++i]!;
-    while (i < end && c >= 48 && c <= 57) {
-      sawDigit = true;
-      if (mantissa !== 0 || c !== 48) {
-        if (digits < 15) {
-          mantissa = mantissa * 10 + (c - 48);
-          digits++;
-          exponent--;
-        } else if (c !== 48) exact = false;
-      } else exponent--;
-      c = bytes[++i]!;
-    }
-  }
-  if (!sawDigit) {
-    cursor = i;
-    return Number.NaN;
-  }
-  if (i < end && (c === 101 || c === 69) /* e E */) {
-    let j = i + 1;
-    let d = bytes[j]!;
-    let expNegative = false;
-    if (d === 45) {
-      expNegative = true;
-      d = bytes[++j]!;
-    } else if (d === 43) d = bytes[++j]!;
-    if (j < end && d >= 48 && d <= 57) {
-      let e = 0;
-      while (j < end && d >= 48 && d <= 57) {
-        if (e < 100000) e = e * 10 + (d - 48);
-        d = bytes[++j]!;
-      }
-      exponent += expNegative ? -e : e;
-      i = j;
-    }
-  }
-  cursor = i;
-  if (!exact || digits > 15) {
-    const v = slowNumber(bytes, numberStart, i);
-    return negative ? -v : v;
-  }
-  let v: number;
-  if (exponent === 0) v = mantissa;
-  else if (exponent < 0 && exponent >= -22) v = mantissa / POW10[-exponent]!;
-  else if (exponent > 0 && exponent <= 22) v = mantissa * POW10[exponent]!;
-  else if (mantissa === 0) v = 0;
-  else {
-    const s = slowNumber(bytes, numberStart, i);
-    return negative ? -s : s;
-  }
-  return negative ? -v : v;
 }
 
 function headerCells(line: string, delimiter: string): string[] {
@@ -214,17 +124,20 @@ export function parseTrackCsv(bytes: Uint8Array, columns: TrackColumns, options:
   const x = new Float64Array(capacity);
   const y = new Float64Array(capacity);
   const z = new Float64Array(capacity);
-  const values = new Float64Array(4);
 
   const delim = delimiter.charCodeAt(0);
   const decimalAlt = delimiter === ',' ? 46 : 44;
+  const roles = roleOfColumn.length;
   const end = bytes.length;
   let n = 0;
   let rows = 0;
   let dropped = 0;
+  let v0 = 0, v1 = 0, v2 = 0, v3 = 0;
   pos = headerEnd + 1;
+  // One pass over the bytes. Number reading is inlined: with at most 15 significant digits and a
+  // decimal exponent within ±22 the result is one correctly rounded operation, identical to Number();
+  // Clinger (1990), PLDI '90:92-101. Anything else falls back to Number() on the cell.
   while (pos < end) {
-    // Blank line?
     let c = bytes[pos]!;
     if (c === NEWLINE) {
       pos++;
@@ -234,59 +147,118 @@ export function parseTrackCsv(bytes: Uint8Array, columns: TrackColumns, options:
       pos += 2;
       continue;
     }
-    values[0] = values[1] = values[2] = values[3] = Number.NaN;
+    v0 = v1 = v2 = v3 = Number.NaN;
     let column = 0;
-    let fieldStart = pos;
-    // Walk the fields of this line.
     for (;;) {
-      const role = column < roleOfColumn.length ? roleOfColumn[column]! : -1;
-      let p = fieldStart;
+      const role = column < roles ? roleOfColumn[column]! : -1;
       if (role >= 0) {
-        c = bytes[p]!;
+        let value = Number.NaN;
+        let i = pos;
+        c = i < end ? bytes[i]! : NEWLINE;
         if (c === QUOTE) {
           // Quoted cell: read up to the closing quote, then parse the inside.
-          let q = p + 1;
+          let q = i + 1;
           while (q < end && bytes[q] !== QUOTE) q++;
-          values[role] = slowNumber(bytes, p + 1, q);
-          p = q + 1;
+          value = slowNumber(bytes, i + 1, q);
+          i = q + 1;
         } else {
-          const v = parseNumber(bytes, p, end, decimalAlt);
-          p = cursor;
-          while (p < end && bytes[p] === SPACE && bytes[p] !== delim) p++;
-          c = p < end ? bytes[p]! : NEWLINE;
-          values[role] = c === delim || c === NEWLINE || c === CR ? v : Number.NaN;
+          while (c === SPACE) c = ++i < end ? bytes[i]! : NEWLINE;
+          let negative = false;
+          if (c === 45 /* - */) {
+            negative = true;
+            c = ++i < end ? bytes[i]! : NEWLINE;
+          } else if (c === 43 /* + */) c = ++i < end ? bytes[i]! : NEWLINE;
+          const numberStart = i;
+          let mantissa = 0;
+          let digits = 0;
+          let exponent = 0;
+          let sawDigit = false;
+          let exact = true;
+          while (c >= 48 && c <= 57) {
+            sawDigit = true;
+            if (digits < 15) {
+              mantissa = mantissa * 10 + (c - 48);
+              if (mantissa !== 0) digits++;
+            } else {
+              exponent++;
+              if (c !== 48) exact = false;
+            }
+            c = ++i < end ? bytes[i]! : NEWLINE;
+          }
+          if (c === 46 || c === decimalAlt) {
+            c = ++i < end ? bytes[i]! : NEWLINE;
+            while (c >= 48 && c <= 57) {
+              sawDigit = true;
+              if (digits < 15) {
+                mantissa = mantissa * 10 + (c - 48);
+                if (mantissa !== 0) digits++;
+                exponent--;
+              } else if (c !== 48) exact = false;
+              c = ++i < end ? bytes[i]! : NEWLINE;
+            }
+          }
+          if (sawDigit && (c === 101 || c === 69) /* e E */) {
+            let j = i + 1;
+            let d = j < end ? bytes[j]! : NEWLINE;
+            let expNegative = false;
+            if (d === 45) {
+              expNegative = true;
+              d = ++j < end ? bytes[j]! : NEWLINE;
+            } else if (d === 43) d = ++j < end ? bytes[j]! : NEWLINE;
+            if (d >= 48 && d <= 57) {
+              let e = 0;
+              while (d >= 48 && d <= 57) {
+                if (e < 100000) e = e * 10 + (d - 48);
+                d = ++j < end ? bytes[j]! : NEWLINE;
+              }
+              exponent += expNegative ? -e : e;
+              i = j;
+              c = d;
+            }
+          }
+          const numberEnd = i;
+          while (c === SPACE) c = ++i < end ? bytes[i]! : NEWLINE;
+          if (sawDigit && (c === delim || c === NEWLINE || c === CR)) {
+            if (exact && exponent === 0) value = mantissa;
+            else if (exact && exponent < 0 && exponent >= -22) value = mantissa / POW10[-exponent]!;
+            else if (exact && exponent > 0 && exponent <= 22) value = mantissa * POW10[exponent]!;
+            else if (exact && mantissa === 0) value = 0;
+            else value = slowNumber(bytes, numberStart, numberEnd);
+            if (negative) value = -value;
+          }
         }
+        pos = i;
+        if (role === 0) v0 = value;
+        else if (role === 1) v1 = value;
+        else if (role === 2) v2 = value;
+        else v3 = value;
       }
-      // Move to the end of this field.
-      while (p < end) {
-        c = bytes[p]!;
+      // Move to the end of this cell.
+      while (pos < end) {
+        c = bytes[pos]!;
         if (c === delim || c === NEWLINE) break;
-        p++;
+        pos++;
       }
-      if (p >= end || bytes[p] === NEWLINE) {
-        pos = p + 1;
+      if (pos >= end || c === NEWLINE) {
+        pos++;
         break;
       }
+      pos++;
       column++;
-      fieldStart = p + 1;
       if (column > lastWanted) {
         // Skip the rest of the line.
-        const nl = bytes.indexOf(NEWLINE, fieldStart);
+        const nl = bytes.indexOf(NEWLINE, pos);
         pos = nl < 0 ? end : nl + 1;
         break;
       }
     }
     rows++;
-    const tv = values[0]!;
-    const xv = values[1]!;
-    const yv = values[2]!;
-    const zv = values[3]!;
     // NaN fails every comparison: one test catches any missing value.
-    if (tv === tv && xv === xv && yv === yv && zv === zv) {
-      t[n] = tv * timeScale;
-      x[n] = xv * lengthScale;
-      y[n] = yv * lengthScale;
-      z[n] = zv * lengthScale;
+    if (v0 === v0 && v1 === v1 && v2 === v2 && v3 === v3) {
+      t[n] = v0 * timeScale;
+      x[n] = v1 * lengthScale;
+      y[n] = v2 * lengthScale;
+      z[n] = v3 * lengthScale;
       n++;
     } else dropped++;
   }

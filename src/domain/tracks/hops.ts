@@ -7,6 +7,7 @@ import { invalidInput } from '@/domain/errors';
 import { STANDARD_GRAVITY, degrees } from '@/domain/metrics/ballistics';
 import { arcCrossings, fitFlight, type FlightFit } from './fit';
 import { GAP_FACTOR, flightSegments, traceStatistics, type FlightSegment } from './segment';
+import { medianOfRange } from './select';
 
 export interface TrackSamples {
   /** Times in s, heights and positions in m. */
@@ -111,12 +112,6 @@ function mean(values: number[]): number | null {
   return s / values.length;
 }
 
-function medianOfRange(z: Float64Array, start: number, end: number): number {
-  const part = Float64Array.from(z.subarray(start, end)).sort();
-  const m = part.length >> 1;
-  return part.length % 2 ? part[m]! : (part[m - 1]! + part[m]!) / 2;
-}
-
 function listed(items: string[]): string {
   return items.length <= MAX_LISTED ? items.join(', ') : `${items.slice(0, MAX_LISTED).join(', ')} and ${items.length - MAX_LISTED} more`;
 }
@@ -168,7 +163,7 @@ function fitSegment(s: TrackSamples, segment: FlightSegment, ground: number, ent
     const tau = s.t[i]! - fit.t0;
     residuals[k++] = Math.abs(s.z[i]! - (fit.a + tau * (fit.b + tau * fit.c)));
   }
-  const robust = residuals.slice().sort()[kept >> 1]! * 1.4826;
+  const robust = medianOfRange(residuals, 0, kept) * 1.4826;
   const limit = 5 * Math.max(robust, noise, 1e-9);
   let removed = 0;
   k = 0;
