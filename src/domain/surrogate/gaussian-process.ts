@@ -6,6 +6,7 @@
  */
 // Rasmussen & Williams (2006), Gaussian Processes for Machine Learning, MIT Press, ch. 2 and 5 (alg. 2.1, eq. 5.9)
 import { invalidInput } from '../errors';
+import type { Factor } from '../factors';
 import { seededRandom } from '../random';
 import { correlation, lengthScaleSensitivity, type KernelKind } from './kernels';
 import { minimizeBounded } from './lbfgs';
@@ -35,6 +36,8 @@ export interface GaussianProcessOptions {
 
 export interface GaussianProcessModel {
   kernel: KernelKind;
+  /** The factors behind the coded inputs, when the model was fitted to a campaign (for slices in natural units). */
+  factors?: Factor[];
   categorical: boolean[];
   /** Training inputs, one row per observation. */
   inputs: Float64Array[];

@@ -13,3 +13,7 @@ export {
 export { expectedImprovement, logExpectedImprovement, standardNormalCdf, standardNormalPdf } from './acquisition';
 export { minimizeBounded } from './lbfgs';
 export { suggestTrials, fitSurrogate, prepareData } from './suggest';
+export { fitFeasibility, feasibilityProbability, type FeasibilityModel } from './feasibility';
+export { refineDesignCandidates, type RefinePick } from './refine';
+export { DEFAULT_FEASIBILITY_THRESHOLD, DEFAULT_TRIAL_MINUTES } from './suggest';
+export { surrogateSlice, surrogateGrid, type SurrogateSlice, type SurrogateGrid, type SlicePoint } from './slice';

@@ -1,31 +1,43 @@
 /**
  * Next trials: fit the surrogate to the campaign's data and pick a batch by the requested strategy.
- * "improve" maximises (log) expected improvement over the best posterior mean at the observed points
- * (the plug-in form for noisy data) and fills a batch by the kriging believer: each chosen point is
- * added as if it returned its predicted mean, which leaves the mean unchanged and shrinks the variance
- * nearby, so the next pick goes elsewhere.
+ *
+ * - improve: (log) expected improvement over the best posterior mean at the observed settings (the plug-in
+ *   form for noisy data), times the probability that the trial does not fail; batches by the kriging believer.
+ * - explore: integrated reduction of the posterior variance over the factor space.
+ * - refine: D-optimal augmentation of the observed design for a quadratic model.
+ * - confirm: replicates at the predicted best.
+ * Swap-aware: a hard-to-change factor with a change cost keeps its current level unless changing buys more
+ * expected improvement per minute of rig time; the batch is grouped by level. Observed settings are
+ * candidates too, so a replicate is suggested (and said so) when it is worth more than a new point.
  */
-// Ginsbourger, Le Riche & Carraro (2010), Computational Intelligence in Expensive Optimization Problems, 131-162 (kriging believer)
 import { DomainError, invalidInput, isDomainError } from '../errors';
 import { codePoint, validateSpace, type Factor, type FactorSpace, type Point } from '../factors';
 import { seededRandom, type RandomSource } from '../random';
 import { expectedImprovement, logExpectedImprovement } from './acquisition';
 import { feasibleCoded, latinHypercubeCandidates, perturbations, snapCoded } from './candidates';
-import { crossCovariance, fitGaussianProcess, pointCovariance, type GaussianProcessModel } from './gaussian-process';
+import { feasibilityProbability, fitFeasibility, type FeasibilityModel } from './feasibility';
+import { fitGaussianProcess, pointCovariance, type GaussianProcessModel } from './gaussian-process';
 import { KERNEL_KINDS } from './kernels';
-import { solveLower } from './linear-algebra';
+import { BelieverPosterior, CandidateVariances, meanStandardised, meansAtObservations, noiseStandardised, predictStandardised } from './posterior';
+import { refineDesignCandidates } from './refine';
 import type { Suggestion, SuggestionRequest, SuggestionResult, SurrogateSummary } from './types';
 
 const STRATEGIES = ['improve', 'explore', 'refine', 'confirm'] as const;
 const MAX_COUNT = 100;
+/** Default lowest acceptable probability that a suggested trial does not fail. */
+export const DEFAULT_FEASIBILITY_THRESHOLD = 0.5;
+/** Default rig minutes per trial, used to weigh a change cost against the trials of a batch (an assumption; state your own). */
+export const DEFAULT_TRIAL_MINUTES = 10;
+/** Smallest coded separation between two new trials of one batch; closer counts as the same setting. */
+const BATCH_SEPARATION = 0.02;
 
 export interface PreparedData {
   space: FactorSpace;
   /** Coded inputs of trials with a response (failed trials excluded). */
   inputs: Float64Array[];
   y: number[];
-  /** Coded inputs of every trial, with its failed flag. */
-  all: { coded: Float64Array; failed: boolean }[];
+  /** Coded inputs of every trial, with its failed flag, in the order given. */
+  all: { coded: Float64Array; failed: boolean; row: number }[];
 }
 
 function reField(e: unknown, prefix: string): unknown {
@@ -48,6 +60,13 @@ export function prepareData(request: SuggestionRequest): PreparedData {
   if (request.kernel !== undefined && !KERNEL_KINDS.includes(request.kernel)) {
     throw invalidInput('kernel', `kernel must be one of: ${KERNEL_KINDS.join(', ')}`);
   }
+  const t = request.feasibilityThreshold;
+  if (t !== undefined && !(t >= 0 && t < 1)) throw invalidInput('feasibilityThreshold', 'the feasibility threshold is a probability from 0 up to (not including) 1');
+  if (request.trialMinutes !== undefined && !(request.trialMinutes > 0)) throw invalidInput('trialMinutes', 'minutes per trial must be positive');
+  for (const [name, minutes] of Object.entries(request.swapCost ?? {})) {
+    if (!request.factors.some((f) => f.name === name)) throw invalidInput(`swapCost.${name}`, `unknown factor "${name}" in swapCost`);
+    if (!(Number.isFinite(minutes) && minutes >= 0)) throw invalidInput(`swapCost.${name}`, 'a change cost is a number of minutes, zero or more');
+  }
   if (!Array.isArray(request.data)) throw invalidInput('data', 'data must be a list of observed trials');
   const inputs: Float64Array[] = [];
   const y: number[] = [];
@@ -60,7 +79,7 @@ export function prepareData(request: SuggestionRequest): PreparedData {
       throw reField(e, `data[${i}]`);
     }
     const failed = row.failed === true;
-    all.push({ coded, failed });
+    all.push({ coded, failed, row: i });
     if (failed) return;
     const raw = row[request.response];
     const value = typeof raw === 'number' ? raw : typeof raw === 'string' && raw.trim() !== '' ? Number(raw) : NaN;
@@ -100,147 +119,40 @@ export function formatNumber(v: number): string {
   return String(Number(v.toPrecision(3)));
 }
 
-/**
- * The posterior with extra "believed" points appended: a growing Cholesky factor in standardised units.
- * The mean is that of the fitted model throughout (a believed point equals its predicted mean).
- */
-class BelieverPosterior {
-  readonly model: GaussianProcessModel;
-  private l: Float64Array;
-  private size: number;
-  private readonly capacity: number;
-  readonly points: Float64Array[];
-  readonly sf2: number;
-  readonly nugget: number;
-
-  constructor(model: GaussianProcessModel, extra: number) {
-    this.model = model;
-    this.size = model.n;
-    this.capacity = model.n + extra;
-    this.l = new Float64Array(this.capacity * this.capacity);
-    for (let i = 0; i < model.n; i++) {
-      for (let j = 0; j <= i; j++) this.l[i * this.capacity + j] = model.cholesky[i * model.n + j]!;
-    }
-    this.points = model.inputs.slice();
-    this.sf2 = Math.exp(model.theta[model.d]!);
-    this.nugget = Math.exp(model.theta[model.d + 1]!) + 1e-10;
-  }
-
-  get n(): number {
-    return this.size;
-  }
-
-  /** v = L⁻¹ k(X, x) over the current (observed + believed) points. */
-  whiten(point: ArrayLike<number>): Float64Array {
-    const n = this.size;
-    const cap = this.capacity;
-    const k = new Float64Array(n);
-    crossCovariance(this.model, point, k.subarray(0, this.model.n));
-    for (let i = this.model.n; i < n; i++) k[i] = pointCovariance(this.model, this.points[i]!, point);
-    const v = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      const row = i * cap;
-      let s = k[i]!;
-      for (let j = 0; j < i; j++) s -= this.l[row + j]! * v[j]!;
-      v[i] = s / this.l[row + i]!;
-    }
-    return v;
-  }
-
-  /** Standardised posterior variance of the latent function at a point. */
-  variance(point: ArrayLike<number>): number {
-    const v = this.whiten(point);
-    let vv = 0;
-    for (let i = 0; i < v.length; i++) vv += v[i]! * v[i]!;
-    return Math.max(0, this.sf2 - vv);
-  }
-
-  /** Append a believed observation at `point`; returns its whitened row and diagonal for incremental updates. */
-  add(point: Float64Array): { v: Float64Array; diagonal: number } {
-    const v = this.whiten(point);
-    let vv = 0;
-    for (let i = 0; i < v.length; i++) vv += v[i]! * v[i]!;
-    const diagonal = Math.sqrt(Math.max(this.sf2 + this.nugget - vv, 1e-12));
-    const row = this.size * this.capacity;
-    for (let j = 0; j < this.size; j++) this.l[row + j] = v[j]!;
-    this.l[row + this.size] = diagonal;
-    this.points.push(point);
-    this.size++;
-    return { v, diagonal };
-  }
+/** True when `point` is (almost) the same setting as one in `others`: every coded coordinate within the separation. */
+export function tooClose(point: ArrayLike<number>, others: readonly ArrayLike<number>[]): boolean {
+  return others.some((q) => sameSetting(point, q));
 }
 
-/** Standardised posterior mean of the fitted model at a point. */
-function meanStandardised(model: GaussianProcessModel, point: ArrayLike<number>): number {
-  const k = crossCovariance(model, point);
-  let m = 0;
-  for (let i = 0; i < model.n; i++) m += k[i]! * model.alpha[i]!;
-  return m;
+function sameSetting(a: ArrayLike<number>, b: ArrayLike<number>): boolean {
+  for (let k = 0; k < a.length; k++) if (Math.abs(a[k]! - b[k]!) >= BATCH_SEPARATION) return false;
+  return true;
 }
 
-/** Standardised posterior means at the training inputs: K_f α = y − σ_n² α. */
-function meansAtObservations(model: GaussianProcessModel): Float64Array {
-  const nugget = Math.exp(model.theta[model.d + 1]!) + 1e-10;
-  const out = new Float64Array(model.n);
-  for (let i = 0; i < model.n; i++) out[i] = model.yStandardised[i]! - nugget * model.alpha[i]!;
-  return out;
-}
-
-interface CandidatePool {
-  coded: Float64Array[];
-  points: Point[];
-}
-
-function buildCandidates(space: FactorSpace, model: GaussianProcessModel, sign: number, rng: RandomSource): CandidatePool {
-  const factors = space.factors;
-  const d = factors.length;
-  const spread = Math.min(3000, Math.max(500, 150 * d));
-  const raw = latinHypercubeCandidates(factors, spread, rng);
-  // Local candidates around the observed points with the best posterior means.
-  const means = meansAtObservations(model);
-  const order = Array.from(means.keys()).sort((a, b) => sign * (means[b]! - means[a]!));
-  for (const i of order.slice(0, 5)) {
-    raw.push(...perturbations(factors, model.inputs[i]!, 40, 0.15, rng));
-    raw.push(...perturbations(factors, model.inputs[i]!, 20, 0.04, rng));
-  }
-  const coded: Float64Array[] = [];
-  const points: Point[] = [];
-  for (const c of raw) {
-    const p = feasibleCoded(space, c);
-    if (p) {
-      coded.push(c);
-      points.push(p);
-    }
-  }
-  if (coded.length === 0) {
-    throw new DomainError('infeasible', 'no point of the factor space satisfies the constraints; loosen a constraint or a disallowed combination', 'constraints');
-  }
-  return { coded, points };
-}
-
-/** Compass search over the continuous coordinates, keeping feasibility; maximises `score`. */
+/** Compass search over the given coordinates, keeping `allowed`; maximises `score`. */
 export function refineLocally(
-  space: FactorSpace,
+  factors: readonly Factor[],
+  movable: readonly number[],
   start: Float64Array,
   startScore: number,
   score: (coded: Float64Array) => number,
+  allowed: (coded: Float64Array) => boolean,
   maxEvaluations = 80,
 ): { coded: Float64Array; score: number } {
-  const continuous = space.factors.map((f, k) => (f.kind === 'continuous' ? k : -1)).filter((k) => k >= 0);
   let best = start;
   let bestScore = startScore;
   let step = 0.1;
   let evaluations = 0;
-  while (step >= 0.005 && evaluations < maxEvaluations && continuous.length > 0) {
+  while (step >= 0.005 && evaluations < maxEvaluations && movable.length > 0) {
     let improved = false;
-    for (const k of continuous) {
+    for (const k of movable) {
       for (const dir of [1, -1]) {
         if (evaluations >= maxEvaluations) break;
         const trial = Float64Array.from(best);
         trial[k] = Math.min(1, Math.max(-1, trial[k]! + dir * step));
         if (trial[k] === best[k]) continue;
-        const snapped = snapCoded(space.factors, trial);
-        if (!feasibleCoded(space, snapped)) continue;
+        const snapped = snapCoded(factors, trial);
+        if (!allowed(snapped)) continue;
         evaluations++;
         const s = score(snapped);
         if (s > bestScore) {
@@ -255,124 +167,460 @@ export function refineLocally(
   return { coded: best, score: bestScore };
 }
 
-/** Smallest coded separation between two points of one batch (a deliberate replicate is the "confirm" strategy's job). */
-const BATCH_SEPARATION = 0.02;
-
-/** True when `point` is (almost) the same trial as one already chosen: equal levels and numeric values within the separation. */
-export function tooClose(point: ArrayLike<number>, chosen: readonly ArrayLike<number>[]): boolean {
-  outer: for (const q of chosen) {
-    for (let k = 0; k < q.length; k++) if (Math.abs(q[k]! - point[k]!) >= BATCH_SEPARATION) continue outer;
-    return true;
-  }
-  return false;
+/** Everything a strategy needs: the fitted models, the candidate pool and the rules a trial must satisfy. */
+interface Context {
+  request: SuggestionRequest;
+  data: PreparedData;
+  model: GaussianProcessModel;
+  feasibility: FeasibilityModel | null;
+  threshold: number;
+  sign: number;
+  factors: Factor[];
+  /** Candidates (coded, snapped, satisfying the constraints) and their probability of not failing. */
+  pool: Float64Array[];
+  poolFeasibility: Float64Array;
+  /** Candidates a strategy may pick: feasibility at or above the threshold (or the safest, if none is). */
+  eligible: Uint8Array;
+  /** True when no candidate reached the threshold and the safest ones were kept instead. */
+  relaxed: boolean;
+  /** Index in `data.inputs` of the observed setting each candidate replicates, or −1. */
+  replicateOf: Int32Array;
+  /** 1-based trial number (in the request's data) of each observed input. */
+  trialNumber: number[];
+  rng: RandomSource;
 }
 
-function improveBatch(request: SuggestionRequest, data: PreparedData, model: GaussianProcessModel, rng: RandomSource): Suggestion[] {
+function probabilityOk(ctx: Pick<Context, 'feasibility'>, coded: ArrayLike<number>): number {
+  return ctx.feasibility ? feasibilityProbability(ctx.feasibility, coded) : 1;
+}
+
+function buildContext(request: SuggestionRequest, data: PreparedData, model: GaussianProcessModel, rng: RandomSource): Context {
+  const factors = request.factors;
   const sign = request.goal === 'maximize' ? 1 : -1;
-  const { space } = data;
-  const pool = buildCandidates(space, model, sign, rng);
-  const posterior = new BelieverPosterior(model, request.count);
-  const observedMeans = meansAtObservations(model);
-  let incumbent = -Infinity;
-  for (let i = 0; i < model.n; i++) incumbent = Math.max(incumbent, sign * observedMeans[i]!);
-
-  const m = pool.coded.length;
-  const goalMean = new Float64Array(m);
-  const variance = new Float64Array(m);
-  const whitened: Float64Array[] = [];
-  for (let c = 0; c < m; c++) {
-    goalMean[c] = sign * meanStandardised(model, pool.coded[c]!);
-    const v = posterior.whiten(pool.coded[c]!);
-    let vv = 0;
-    for (let i = 0; i < v.length; i++) vv += v[i]! * v[i]!;
-    variance[c] = Math.max(0, posterior.sf2 - vv);
-    const grown = new Float64Array(model.n + request.count);
-    grown.set(v);
-    whitened.push(grown);
+  const categorical = factors.map((f) => f.kind === 'categorical');
+  const feasibility = fitFeasibility(data.all.map((a) => a.coded), data.all.map((a) => a.failed), categorical, model.kernel);
+  const threshold = request.feasibilityThreshold ?? DEFAULT_FEASIBILITY_THRESHOLD;
+  const d = factors.length;
+  const raw = latinHypercubeCandidates(factors, Math.min(3000, Math.max(500, 150 * d)), rng);
+  const means = meansAtObservations(model);
+  const order = Array.from(means.keys()).sort((a, b) => sign * (means[b]! - means[a]!));
+  for (const i of order.slice(0, 5)) {
+    raw.push(...perturbations(factors, model.inputs[i]!, 40, 0.15, rng));
+    raw.push(...perturbations(factors, model.inputs[i]!, 20, 0.04, rng));
   }
+  // Settings held at the current level of a costly hard-to-change factor (continuous ones need explicit copies).
+  const costly = hardToChangeIndices(request);
+  if (costly.some((k) => factors[k]!.kind === 'continuous') && data.all.length > 0) {
+    const current = data.all[data.all.length - 1]!.coded;
+    const held = raw.slice(0, 500).map((c) => {
+      const copy = Float64Array.from(c);
+      for (const k of costly) copy[k] = current[k]!;
+      return copy;
+    });
+    raw.push(...held);
+  }
+  const pool: Float64Array[] = [];
+  const replicateOf: number[] = [];
+  // Observed settings first (replicate candidates), once each.
+  const seen: Float64Array[] = [];
+  model.inputs.forEach((x, i) => {
+    if (seen.some((s) => s.every((v, k) => v === x[k]))) return;
+    seen.push(x);
+    if (!feasibleCoded(data.space, x)) return;
+    pool.push(x);
+    replicateOf.push(i);
+  });
+  for (const c of raw) {
+    if (feasibleCoded(data.space, c)) {
+      pool.push(c);
+      replicateOf.push(-1);
+    }
+  }
+  if (pool.length === 0) {
+    throw new DomainError('infeasible', 'no point of the factor space satisfies the constraints; loosen a constraint or a disallowed combination', 'constraints');
+  }
+  const poolFeasibility = new Float64Array(pool.length);
+  for (let c = 0; c < pool.length; c++) poolFeasibility[c] = feasibility ? feasibilityProbability(feasibility, pool[c]!) : 1;
+  const eligible = new Uint8Array(pool.length);
+  let any = false;
+  let maxP = 0;
+  for (let c = 0; c < pool.length; c++) {
+    maxP = Math.max(maxP, poolFeasibility[c]!);
+    if (poolFeasibility[c]! >= threshold) {
+      eligible[c] = 1;
+      any = true;
+    }
+  }
+  if (!any) for (let c = 0; c < pool.length; c++) eligible[c] = poolFeasibility[c]! >= maxP - 0.05 ? 1 : 0;
+  const trialNumber = data.all.filter((a) => !a.failed).map((a) => a.row + 1);
+  return {
+    request, data, model, feasibility, threshold, sign, factors, pool, poolFeasibility, eligible, relaxed: !any,
+    replicateOf: Int32Array.from(replicateOf), trialNumber, rng,
+  };
+}
 
-  const suggestions: Suggestion[] = [];
+/** Factor indices with a positive change cost. */
+function hardToChangeIndices(request: SuggestionRequest): number[] {
+  const cost = request.swapCost ?? {};
+  return request.factors.map((f, k) => ((cost[f.name] ?? 0) > 0 ? k : -1)).filter((k) => k >= 0);
+}
+
+interface Chosen {
+  coded: Float64Array;
+  /** Acquisition value in response units (constrained EI for improve). */
+  acquisition: number;
+  feasibility: number;
+  replicateOf: number;
+  /** Expected improvement (response units) at the moment of choice, before the feasibility weight. */
+  improvement?: number;
+  /** Incumbent (response units) when chosen. */
+  incumbent?: number;
+}
+
+/** Greedy kriging-believer batch maximising log EI + log P(no failure) over the allowed candidates. */
+function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: CandidateVariances | null, fixed: readonly number[]): Chosen[] {
+  const { model, sign, pool } = ctx;
+  const posterior = new BelieverPosterior(model, count);
+  const cv = new CandidateVariances(posterior, pool, count, base ?? undefined);
+  const m = pool.length;
+  const goalMean = new Float64Array(m);
+  for (let c = 0; c < m; c++) goalMean[c] = sign * meanStandardised(model, pool[c]!);
+  const logP = new Float64Array(m);
+  for (let c = 0; c < m; c++) logP[c] = ctx.feasibility ? Math.log(Math.max(ctx.poolFeasibility[c]!, 1e-300)) : 0;
+  const observed = meansAtObservations(model);
+  let incumbent = -Infinity;
+  for (let i = 0; i < model.n; i++) incumbent = Math.max(incumbent, sign * observed[i]!);
+  const movable = ctx.factors.map((f, k) => (f.kind === 'continuous' && !fixed.includes(k) ? k : -1)).filter((k) => k >= 0);
+  const chosenList: Chosen[] = [];
   const chosenCoded: Float64Array[] = [];
-  const bestObservedNatural = model.yMean + model.yScale * sign * incumbent;
-  for (let b = 0; b < request.count; b++) {
+  for (let b = 0; b < count; b++) {
     const best = incumbent;
-    const scoreOf = (g: number, v: number) => logExpectedImprovement(g, Math.sqrt(v), best);
-    const scores = new Float64Array(m);
-    for (let c = 0; c < m; c++) scores[c] = tooClose(pool.coded[c]!, chosenCoded) ? -Infinity : scoreOf(goalMean[c]!, variance[c]!);
-    const ranked = Array.from(scores.keys()).sort((a, c) => scores[c]! - scores[a]!);
-    let chosen = { coded: pool.coded[ranked[0]!]!, score: scores[ranked[0]!]! };
-    for (const start of ranked.slice(0, 3)) {
-      if (scores[start] === -Infinity) continue;
-      const refined = refineLocally(space, pool.coded[start]!, scores[start]!, (x) =>
-        tooClose(x, chosenCoded) ? -Infinity : scoreOf(sign * meanStandardised(model, x), posterior.variance(x)),
-      );
-      if (refined.score > chosen.score) chosen = refined;
-    }
-    chosenCoded.push(chosen.coded);
-    const g = sign * meanStandardised(model, chosen.coded);
-    const believedVariance = posterior.variance(chosen.coded);
-    const ei = expectedImprovement(g, Math.sqrt(believedVariance), best) * model.yScale;
-    const prior = predictStandardised(model, chosen.coded);
-    const mean = model.yMean + model.yScale * prior.mean;
-    const sd = model.yScale * Math.sqrt(prior.variance);
-    const values = feasibleCoded(space, chosen.coded)!;
-    const beats = g > best;
-    const reason = beats
-      ? `Predicted ${request.response} ${formatNumber(mean)} ± ${formatNumber(sd)} beats the best so far (${formatNumber(bestObservedNatural)}); expected improvement ${formatNumber(ei)}.`
-      : `Uncertain region (± ${formatNumber(sd)}) that may beat the best ${request.response} so far (${formatNumber(bestObservedNatural)}); expected improvement ${formatNumber(ei)}.`;
-    suggestions.push({ values, mean, sd, acquisition: ei, reason });
-
-    // Kriging believer: condition on the chosen point at its predicted mean.
-    const added = posterior.add(chosen.coded);
-    const column = posterior.n - 1;
+    const scores = new Float64Array(m).fill(-Infinity);
     for (let c = 0; c < m; c++) {
-      const w = whitened[c]!;
-      let dot = 0;
-      for (let i = 0; i < column; i++) dot += w[i]! * added.v[i]!;
-      const kc = pointCovariance(model, pool.coded[c]!, chosen.coded);
-      const u = (kc - dot) / added.diagonal;
-      w[column] = u;
-      variance[c] = Math.max(0, variance[c]! - u * u);
+      if (!allowed[c] || tooClose(pool[c]!, chosenCoded)) continue;
+      scores[c] = logExpectedImprovement(goalMean[c]!, Math.sqrt(cv.variance[c]!), best) + logP[c]!;
     }
+    const ranked = Array.from(scores.keys()).filter((c) => scores[c]! > -Infinity).sort((a, c) => scores[c]! - scores[a]!);
+    if (ranked.length === 0) break;
+    let pick = { coded: pool[ranked[0]!]!, score: scores[ranked[0]!]!, replicateOf: ctx.replicateOf[ranked[0]!]! };
+    for (const start of ranked.slice(0, 3)) {
+      if (ctx.replicateOf[start]! >= 0) continue;
+      const refined = refineLocally(
+        ctx.factors,
+        movable,
+        pool[start]!,
+        scores[start]!,
+        (x) => {
+          const p = probabilityOk(ctx, x);
+          return logExpectedImprovement(sign * meanStandardised(model, x), Math.sqrt(posterior.variance(x)), best) + (ctx.feasibility ? Math.log(Math.max(p, 1e-300)) : 0);
+        },
+        (x) => !tooClose(x, chosenCoded) && feasibleCoded(ctx.data.space, x) !== null && (ctx.relaxed || probabilityOk(ctx, x) >= ctx.threshold),
+      );
+      if (refined.score > pick.score) pick = { coded: refined.coded, score: refined.score, replicateOf: -1 };
+    }
+    // A new point that lands on an observed setting is a replicate of it.
+    if (pick.replicateOf < 0) {
+      const i = model.inputs.findIndex((x) => sameSetting(x, pick.coded));
+      if (i >= 0 && feasibleCoded(ctx.data.space, model.inputs[i]!)) pick = { ...pick, coded: model.inputs[i]!, replicateOf: i };
+    }
+    const g = sign * meanStandardised(model, pick.coded);
+    const sd = Math.sqrt(posterior.variance(pick.coded));
+    const p = probabilityOk(ctx, pick.coded);
+    const improvement = expectedImprovement(g, sd, best) * model.yScale;
+    chosenList.push({
+      coded: pick.coded,
+      acquisition: improvement * p,
+      feasibility: p,
+      replicateOf: pick.replicateOf,
+      improvement,
+      incumbent: model.yMean + model.yScale * sign * best,
+    });
+    chosenCoded.push(pick.coded);
+    const added = posterior.add(pick.coded);
+    cv.update(pick.coded, added);
     incumbent = Math.max(incumbent, g);
   }
-  return suggestions;
+  return chosenList;
 }
 
-/** Standardised posterior mean and variance of the fitted model (no believed points). */
-function predictStandardised(model: GaussianProcessModel, point: ArrayLike<number>): { mean: number; variance: number } {
-  const k = crossCovariance(model, point);
-  let mean = 0;
-  for (let i = 0; i < model.n; i++) mean += k[i]! * model.alpha[i]!;
-  const v = solveLower(model.cholesky, model.n, k);
-  let vv = 0;
-  for (let i = 0; i < model.n; i++) vv += v[i]! * v[i]!;
-  return { mean, variance: Math.max(0, Math.exp(model.theta[model.d]!) - vv) };
+function describeImprove(ctx: Context, chosen: Chosen, mean: number, sd: number): string {
+  const { request, model } = ctx;
+  const noiseSd = Math.sqrt(model.noiseVariance);
+  const best = chosen.incumbent!;
+  const beats = ctx.sign * (mean - best) > 0;
+  let text: string;
+  if (chosen.replicateOf >= 0) {
+    const trial = ctx.trialNumber[chosen.replicateOf]!;
+    text = noiseSd > sd
+      ? `Replicate of trial ${trial}: noise (sd ${formatNumber(noiseSd)}) outweighs the model's uncertainty here (± ${formatNumber(sd)}), so a repeat is worth more than a new point; predicted ${formatNumber(mean)}.`
+      : `Replicate of trial ${trial}: still the most promising setting (${formatNumber(mean)} ± ${formatNumber(sd)}); a repeat firms it up.`;
+  } else if (beats) {
+    text = `Predicted ${request.response} ${formatNumber(mean)} ± ${formatNumber(sd)} beats the best so far (${formatNumber(best)}); expected improvement ${formatNumber(chosen.improvement!)}.`;
+  } else {
+    text = `Uncertain region (± ${formatNumber(sd)}) that may beat the best ${request.response} so far (${formatNumber(best)}); expected improvement ${formatNumber(chosen.improvement!)}.`;
+  }
+  if (ctx.feasibility) {
+    text += ctx.relaxed
+      ? ` No setting reaches the ${Math.round(ctx.threshold * 100)} % no-failure threshold; this one is among the safest (${Math.round(chosen.feasibility * 100)} %).`
+      : ` Chance of running without failure ${Math.round(chosen.feasibility * 100)} %.`;
+  }
+  return text;
+}
+
+function toSuggestion(ctx: Context, chosen: Chosen, reason: (mean: number, sd: number) => string): Suggestion {
+  const { model } = ctx;
+  const pr = predictStandardised(model, chosen.coded);
+  const mean = model.yMean + model.yScale * pr.mean;
+  const sd = model.yScale * Math.sqrt(pr.variance);
+  const values = feasibleCoded(ctx.data.space, chosen.coded)!;
+  const s: Suggestion = { values, mean, sd, acquisition: chosen.acquisition, reason: reason(mean, sd) };
+  if (ctx.feasibility) s.feasibility = chosen.feasibility;
+  return s;
+}
+
+function settingKey(coded: ArrayLike<number>, indices: readonly number[]): string {
+  return indices.map((k) => String(Math.round(coded[k]! * 1e6) / 1e6)).join('|');
+}
+
+function describeSetting(ctx: Context, coded: ArrayLike<number>, indices: readonly number[]): string {
+  const point = feasibleCoded({ factors: ctx.factors }, coded) ?? {};
+  return indices.map((k) => `${ctx.factors[k]!.name} ${formatValue(point[ctx.factors[k]!.name])}`).join(', ');
+}
+
+function formatValue(v: unknown): string {
+  return typeof v === 'number' ? formatNumber(v) : String(v);
+}
+
+/** Minutes spent changing hard-to-change factors when running the settings in `order` from `current`. */
+function changeMinutes(ctx: Context, current: ArrayLike<number>, order: readonly ArrayLike<number>[], indices: readonly number[]): number {
+  const cost = ctx.request.swapCost ?? {};
+  let minutes = 0;
+  let at = current;
+  for (const next of order) {
+    for (const k of indices) if (Math.abs(next[k]! - at[k]!) > 1e-9) minutes += cost[ctx.factors[k]!.name] ?? 0;
+    at = next;
+  }
+  return minutes;
+}
+
+/** Order a batch so that trials sharing the levels of hard-to-change factors run together, the current levels first. */
+function groupByLevels(chosen: Chosen[], indices: readonly number[], current: ArrayLike<number> | null): Chosen[] {
+  if (indices.length === 0) return chosen;
+  const keys: string[] = [];
+  const groups = new Map<string, Chosen[]>();
+  const currentKey = current ? settingKey(current, indices) : null;
+  if (currentKey !== null) {
+    keys.push(currentKey);
+    groups.set(currentKey, []);
+  }
+  for (const c of chosen) {
+    const key = settingKey(c.coded, indices);
+    if (!groups.has(key)) {
+      groups.set(key, []);
+      keys.push(key);
+    }
+    groups.get(key)!.push(c);
+  }
+  return keys.flatMap((k) => groups.get(k)!);
+}
+
+function improveStrategy(ctx: Context): Suggestion[] {
+  const { request, factors } = ctx;
+  const costly = hardToChangeIndices(request);
+  const grouping = factors.map((f, k) => (f.hardToChange || costly.includes(k) ? k : -1)).filter((k) => k >= 0);
+  const current = ctx.data.all.length > 0 ? ctx.data.all[ctx.data.all.length - 1]!.coded : null;
+  const base = new CandidateVariances(new BelieverPosterior(ctx.model, request.count), ctx.pool, request.count);
+  if (costly.length === 0 || current === null) {
+    const chosen = groupByLevels(selectImprove(ctx, request.count, ctx.eligible, base, []), grouping, current);
+    return chosen.map((c) => toSuggestion(ctx, c, (mean, sd) => describeImprove(ctx, c, mean, sd)));
+  }
+  // Swap-aware: compare plans by expected improvement per minute of rig time.
+  const trialMinutes = request.trialMinutes ?? DEFAULT_TRIAL_MINUTES;
+  const currentKey = settingKey(current, costly);
+  const keyOf = Array.from(ctx.pool, (c) => settingKey(c, costly));
+  const bestByKey = new Map<string, number>();
+  const observed = meansAtObservations(ctx.model);
+  let incumbent = -Infinity;
+  for (let i = 0; i < ctx.model.n; i++) incumbent = Math.max(incumbent, ctx.sign * observed[i]!);
+  ctx.pool.forEach((c, i) => {
+    if (!ctx.eligible[i]) return;
+    const s = logExpectedImprovement(ctx.sign * meanStandardised(ctx.model, c), Math.sqrt(base.variance[i]!), incumbent);
+    bestByKey.set(keyOf[i]!, Math.max(bestByKey.get(keyOf[i]!) ?? -Infinity, s));
+  });
+  const alternatives = [...bestByKey.entries()].filter(([k]) => k !== currentKey).sort((a, b) => b[1] - a[1]).slice(0, 4).map(([k]) => k);
+  interface Plan { kind: 'stay' | 'switch' | 'free'; chosen: Chosen[]; minutes: number; rate: number }
+  const plans: Plan[] = [];
+  const runPlan = (kind: Plan['kind'], allowed: Uint8Array, fixed: number[]) => {
+    if (!allowed.some((v) => v === 1)) return;
+    const chosen = groupByLevels(selectImprove(ctx, request.count, allowed, base, fixed), costly, current);
+    if (chosen.length === 0) return;
+    const gain = chosen.reduce((s, c) => s + c.acquisition, 0);
+    const minutes = chosen.length * trialMinutes + changeMinutes(ctx, current, chosen.map((c) => c.coded), costly);
+    plans.push({ kind, chosen, minutes, rate: gain / minutes });
+  };
+  runPlan('stay', ctx.eligible.map((e, i) => (e && keyOf[i] === currentKey ? 1 : 0)), costly);
+  for (const key of alternatives) runPlan('switch', ctx.eligible.map((e, i) => (e && keyOf[i] === key ? 1 : 0)), costly);
+  runPlan('free', ctx.eligible, []);
+  if (plans.length === 0) return [];
+  const stay = plans.find((p) => p.kind === 'stay');
+  let best = plans[0]!;
+  for (const p of plans) if (p.rate > best.rate * (1 + 1e-9) || (p.rate >= best.rate * (1 - 1e-9) && p.minutes < best.minutes)) best = p;
+  const perHour = (r: number) => formatNumber(r * 60);
+  const others = plans.filter((p) => p !== best);
+  const bestOther = others.length ? others.reduce((a, b) => (b.rate > a.rate ? b : a)) : null;
+  const names = costly.map((k) => factors[k]!.name).join(', ');
+  return best.chosen.map((c) =>
+    toSuggestion(ctx, c, (mean, sd) => {
+      let text = describeImprove(ctx, c, mean, sd);
+      const key = settingKey(c.coded, costly);
+      if (best.kind === 'stay') {
+        text += ` Keeps ${describeSetting(ctx, current, costly)}: changing ${names} would not pay for its minutes` +
+          (bestOther ? ` (expected improvement per hour ${perHour(best.rate)} vs ${perHour(bestOther.rate)}).` : '.');
+      } else if (key === currentKey) {
+        text += ` Runs before changing ${names} (batch changes cost ${formatNumber(best.minutes - best.chosen.length * trialMinutes)} min in all).`;
+      } else {
+        text += ` Grouped on ${describeSetting(ctx, c.coded, costly)}; the change is worth its minutes (expected improvement per hour ${perHour(best.rate)}` +
+          (stay ? ` vs ${perHour(stay.rate)} staying).` : ').');
+      }
+      return text;
+    }),
+  );
+}
+
+/** Integrated variance reduction: pick trials that most reduce the average posterior variance over the space. */
+// Sacks, Welch, Mitchell & Wynn (1989), Statistical Science 4:409-435 (integrated mean squared error)
+function exploreStrategy(ctx: Context): Suggestion[] {
+  const { model, pool, request } = ctx;
+  const count = request.count;
+  const reference = latinHypercubeCandidates(ctx.factors, 256, ctx.rng).filter((c) => feasibleCoded(ctx.data.space, c) && probabilityOk(ctx, c) >= ctx.threshold);
+  const refs = reference.length > 0 ? reference : pool.slice(0, 256);
+  const posterior = new BelieverPosterior(model, count);
+  const cv = new CandidateVariances(posterior, pool, count);
+  const rv = new CandidateVariances(posterior, refs, count);
+  const m = pool.length;
+  const r = refs.length;
+  const n = posterior.n;
+  const cov = new Float64Array(r * m);
+  for (let i = 0; i < r; i++) {
+    const wr = rv.whitenedOf(i);
+    for (let c = 0; c < m; c++) {
+      const wc = cv.whitenedOf(c);
+      let dot = 0;
+      for (let k = 0; k < n; k++) dot += wr[k]! * wc[k]!;
+      cov[i * m + c] = pointCovariance(model, refs[i]!, pool[c]!) - dot;
+    }
+  }
+  const nugget = noiseStandardised(model);
+  const chosen: Chosen[] = [];
+  const chosenCoded: Float64Array[] = [];
+  const startAverage = rv.variance.reduce((s, v) => s + v, 0) / r;
+  for (let b = 0; b < count; b++) {
+    let bestC = -1;
+    let bestScore = -Infinity;
+    for (let c = 0; c < m; c++) {
+      if (!ctx.eligible[c] || tooClose(pool[c]!, chosenCoded)) continue;
+      let s = 0;
+      for (let i = 0; i < r; i++) s += cov[i * m + c]! ** 2;
+      s /= r * (cv.variance[c]! + nugget);
+      if (s > bestScore) {
+        bestScore = s;
+        bestC = c;
+      }
+    }
+    if (bestC < 0) break;
+    const point = pool[bestC]!;
+    chosen.push({ coded: point, acquisition: bestScore * model.yScale * model.yScale, feasibility: ctx.poolFeasibility[bestC]!, replicateOf: ctx.replicateOf[bestC]! });
+    chosenCoded.push(point);
+    const added = posterior.add(point);
+    const uc = cv.update(point, added);
+    const ur = rv.update(point, added);
+    for (let i = 0; i < r; i++) for (let c = 0; c < m; c++) cov[i * m + c] = cov[i * m + c]! - ur[i]! * uc[c]!;
+  }
+  return chosen.map((c) =>
+    toSuggestion(ctx, c, (mean, sd) => {
+      const share = startAverage > 0 ? (100 * c.acquisition) / (startAverage * model.yScale * model.yScale) : 0;
+      let text = `Explores: cuts the average predictive variance over the factor space by ${formatNumber(share)} % (sd here ± ${formatNumber(sd)}, predicted ${formatNumber(mean)}).`;
+      if (ctx.feasibility) text += ` Chance of running without failure ${Math.round(c.feasibility * 100)} %.`;
+      return text;
+    }),
+  );
+}
+
+/** Replicates at the predicted best setting among the allowed candidates (refined locally). */
+function confirmStrategy(ctx: Context): Suggestion[] {
+  const { model, pool, sign } = ctx;
+  let bestC = -1;
+  let bestScore = -Infinity;
+  for (let c = 0; c < pool.length; c++) {
+    if (!ctx.eligible[c]) continue;
+    const s = sign * meanStandardised(model, pool[c]!);
+    if (s > bestScore) {
+      bestScore = s;
+      bestC = c;
+    }
+  }
+  if (bestC < 0) return [];
+  let point = pool[bestC]!;
+  let replicateOf = ctx.replicateOf[bestC]!;
+  if (replicateOf < 0) {
+    const movable = ctx.factors.map((f, k) => (f.kind === 'continuous' ? k : -1)).filter((k) => k >= 0);
+    point = refineLocally(ctx.factors, movable, point, bestScore, (x) => sign * meanStandardised(model, x), (x) =>
+      feasibleCoded(ctx.data.space, x) !== null && (ctx.relaxed || probabilityOk(ctx, x) >= ctx.threshold),
+    ).coded;
+    const i = model.inputs.findIndex((x) => sameSetting(x, point));
+    if (i >= 0) {
+      point = model.inputs[i]!;
+      replicateOf = i;
+    }
+  }
+  const p = probabilityOk(ctx, point);
+  const count = ctx.request.count;
+  const chosen: Chosen = { coded: point, acquisition: 0, feasibility: p, replicateOf };
+  return Array.from({ length: count }, (_, j) => {
+    const s = toSuggestion(ctx, chosen, (mean, sd) => {
+      const where = replicateOf >= 0 ? `at the setting of trial ${ctx.trialNumber[replicateOf]!}` : 'at a setting not yet run';
+      let text = `Confirmation ${j + 1} of ${count} at the predicted best (${formatNumber(mean)} ± ${formatNumber(sd)}), ${where}: replicates check that the optimum holds up.`;
+      if (ctx.feasibility) text += ` Chance of running without failure ${Math.round(p * 100)} %.`;
+      return text;
+    });
+    // The acquisition of a confirmation run is the predicted response it confirms.
+    s.acquisition = s.mean;
+    return s;
+  });
+}
+
+function refineStrategy(ctx: Context): Suggestion[] {
+  const allowed = ctx.pool.filter((_, c) => ctx.eligible[c] === 1);
+  const picks = refineDesignCandidates(ctx.factors, ctx.data.inputs, allowed, ctx.request.count);
+  return picks.map((pick) => {
+    const c = ctx.pool.indexOf(pick.coded);
+    const chosen: Chosen = { coded: pick.coded, acquisition: pick.predictionVariance, feasibility: ctx.poolFeasibility[c] ?? 1, replicateOf: ctx.replicateOf[c] ?? -1 };
+    return toSuggestion(ctx, chosen, (mean, sd) => {
+      let text = `Refines the quadratic model: the current design predicts worst here (scaled prediction variance ${formatNumber(pick.predictionVariance)}); predicted ${formatNumber(mean)} ± ${formatNumber(sd)}.`;
+      if (ctx.feasibility) text += ` Chance of running without failure ${Math.round(chosen.feasibility * 100)} %.`;
+      return text;
+    });
+  });
 }
 
 /** Fit the surrogate for a request (exported for the slice plots and the other strategies). */
 export function fitSurrogate(request: SuggestionRequest, data: PreparedData = prepareData(request)): GaussianProcessModel {
-  return fitGaussianProcess(data.inputs, data.y, {
+  const model = fitGaussianProcess(data.inputs, data.y, {
     kernel: request.kernel ?? 'matern52',
     categorical: request.factors.map((f) => f.kind === 'categorical'),
     seed: request.seed ?? 1,
     starts: data.inputs.length > 300 ? 2 : 3,
   });
+  model.factors = request.factors.slice();
+  return model;
 }
 
 /** Suggest the next batch of trials for a campaign's data. */
 export function suggestTrials(request: SuggestionRequest): SuggestionResult {
   const data = prepareData(request);
   const model = fitSurrogate(request, data);
-  const rng = seededRandom((request.seed ?? 1) + 7919);
+  const ctx = buildContext(request, data, model, seededRandom((request.seed ?? 1) + 7919));
   const strategy = request.strategy ?? 'improve';
-  let suggestions: Suggestion[];
-  switch (strategy) {
-    case 'improve':
-      suggestions = improveBatch(request, data, model, rng);
-      break;
-    default:
-      throw new DomainError('unsupported', `strategy "${strategy}" is not available yet; use "improve"`, 'strategy');
-  }
-  return { suggestions, model: summarise(model, request.factors) };
+  const run = { improve: improveStrategy, explore: exploreStrategy, confirm: confirmStrategy, refine: refineStrategy }[strategy];
+  return { suggestions: run(ctx), model: summarise(model, request.factors) };
 }

@@ -21,6 +21,8 @@ export interface SuggestionRequest {
   /** Lowest acceptable probability that a suggested trial does not fail. */
   feasibilityThreshold?: number;
   seed?: number;
+  /** Rig minutes per trial, to weigh change costs against a batch (default 10). */
+  trialMinutes?: number;
   constraints?: LinearConstraint[];
   disallowed?: DisallowedCombination[];
   kernel?: KernelKind;

@@ -29,6 +29,7 @@ export const suggestionRequestSchema = z.object({
   swapCost: z.record(z.string(), finite.refine((v) => v >= 0, 'a change cost is minutes, zero or more')).optional(),
   feasibilityThreshold: z.number().min(0).max(1).optional(),
   seed: z.number().int().min(0).max(2 ** 31 - 1).optional(),
+  trialMinutes: z.number().positive().max(24 * 60).optional(),
   constraints: z
     .array(z.object({ terms: z.record(z.string(), finite), min: finite.optional(), max: finite.optional() }))
     .max(50)
