@@ -8,6 +8,7 @@ import {
   validateSpace,
   type Factor,
   type FactorSpace,
+  type Point,
   type StandardModel,
 } from '../factors';
 import { seededRandom } from '../random';
@@ -29,6 +30,7 @@ import {
 } from './fractional-factorial';
 import { centreRuns } from './full-factorial';
 import { plackettBurmanDesign } from './plackett-burman';
+import { blockFactor, optimalDesign, type OptimalDesignOptions } from './optimal-design';
 import {
   DESIGN_METHODS,
   type CodedRun,
@@ -70,7 +72,7 @@ function space(spec: DesignSpec): FactorSpace {
 }
 
 /** What a construction adds to the diagnostics besides the runs. */
-type Extras = Pick<DesignDiagnostics, 'fraction' | 'axialDistance'>;
+type Extras = Pick<DesignDiagnostics, 'fraction' | 'axialDistance' | 'optimal'>;
 
 function replicate(runs: CodedRun[], replicates: number | undefined): CodedRun[] {
   const r = replicates ?? 1;
@@ -141,9 +143,36 @@ function fractionalFactorial(spec: DesignSpec, model: StandardModel, extras: Ext
   return withCentres(factors, replicate(coded, spec.replicates), spec.centerPoints);
 }
 
-function construct(spec: DesignSpec, model: StandardModel, notes: string[], extras: Extras): CodedRun[] {
+function construct(
+  spec: DesignSpec,
+  model: StandardModel,
+  notes: string[],
+  extras: Extras,
+  existingCoded: number[][],
+  options: OptimalDesignOptions,
+): CodedRun[] {
   const { factors } = spec;
   switch (spec.method) {
+    case 'optimal': {
+      if (spec.starts !== undefined && (!Number.isInteger(spec.starts) || spec.starts < 1 || spec.starts > 10_000)) {
+        throw invalidInput('starts', 'starts must be a whole number from 1 to 10000');
+      }
+      const out = optimalDesign(spec, model, existingCoded, { ...options, starts: spec.starts ?? options.starts, varianceRatio: spec.varianceRatio ?? options.varianceRatio });
+      extras.optimal = {
+        criterion: out.search.criterion,
+        value: out.search.value,
+        startsCompleted: out.search.startsCompleted,
+        stopped: out.search.stopped,
+      };
+      if (spec.wholePlots !== undefined) {
+        extras.optimal.wholePlots = spec.wholePlots;
+        extras.optimal.varianceRatio = out.varianceRatio;
+      }
+      if (spec.factors.some((f) => f.hardToChange) && spec.wholePlots === undefined) {
+        notes.push('hard-to-change factors were randomised freely; give wholePlots for a split-plot design');
+      }
+      return out.runs;
+    }
     case 'full-factorial':
       return fullFactorialDesign(factors, { model, replicates: spec.replicates, centerPoints: spec.centerPoints });
     case 'fractional-factorial':
@@ -188,7 +217,11 @@ function naturalValues(factors: readonly Factor[], coded: readonly number[]) {
   return decodePoint(factors, coded);
 }
 
-export function generateDesign(spec: DesignSpec): DesignResult {
+/**
+ * Build the design a request describes. `options` carries the search controls of optimal designs
+ * (progress callback, stop check) that have no place in a JSON request.
+ */
+export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions = {}): DesignResult {
   checkSpec(spec);
   const model = spec.model ?? defaultModel(spec.method);
   const seed = spec.seed ?? DEFAULT_SEED;
@@ -204,7 +237,7 @@ export function generateDesign(spec: DesignSpec): DesignResult {
     return { order: 0, values: naturalValues(spec.factors, coded), coded, existing: true };
   });
   const extras: Extras = {};
-  const fresh = construct(spec, model, notes, extras);
+  const fresh = construct(spec, model, notes, extras, existing.map((r) => r.coded), options);
   assertFeasible(spec, fresh);
   const ordered = randomiseRunOrder(fresh, seededRandom(seed));
   const runs: DesignRun[] = [
@@ -218,6 +251,22 @@ export function generateDesign(spec: DesignSpec): DesignResult {
   ];
   runs.forEach((r, i) => (r.order = i + 1));
   const terms = standardTerms(spec.factors, model);
-  const diagnostics: DesignDiagnostics = { ...designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes), ...extras };
+  // Blocks enter the diagnostics model as a categorical factor (existing runs in block 0).
+  const blockIds = new Set(runs.map((r) => r.block ?? 0));
+  let base: DesignDiagnostics;
+  if (blockIds.size > 1) {
+    const ids = [...blockIds].sort((a, b) => a - b);
+    const block = { ...blockFactor(spec.factors, ids.length), levels: ids.map(String) };
+    const allTerms = [...terms, { label: block.name, parts: [{ name: block.name, power: 1 }] }];
+    base = designDiagnostics([...spec.factors, block], allTerms, runs.map((r) => [...r.coded, ids.indexOf(r.block ?? 0)]), notes);
+  } else {
+    base = designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes);
+  }
+  const diagnostics: DesignDiagnostics = { ...base, ...extras };
   return { runs, diagnostics, method: spec.method, model, terms: terms.map((t) => t.label), seed };
+}
+
+/** Add `runs` new runs to runs already made (or planned), chosen by the optimal-design search. */
+export function augmentDesign(spec: DesignSpec & { existingRuns: Point[]; runs: number }, options: OptimalDesignOptions = {}): DesignResult {
+  return generateDesign({ ...spec, method: 'optimal' }, options);
 }

@@ -1,6 +1,6 @@
 /** The design engine: classical constructions, randomisation, diagnostics and next-run choice. */
 export * from './types';
-export { generateDesign, defaultModel, DEFAULT_SEED } from './generate';
+export { generateDesign, augmentDesign, defaultModel, DEFAULT_SEED } from './generate';
 export { nextRunByPredictionVariance, resolveTerms, candidateSet, type NextRunOptions, type NextRunByVariance } from './prediction-variance';
 export { fullFactorialDesign, centreRuns } from './full-factorial';
 export { centralCompositeDesign, rotatableAlpha, orthogonalAlpha, DEFAULT_CCD_CENTRE_RUNS } from './central-composite';
@@ -9,3 +9,7 @@ export { designDiagnostics, assertEstimable } from './diagnostics';
 export * from './fractional-factorial';
 export * from './plackett-burman';
 export { summariseFraction } from './generate';
+export { coordinateExchange, DEFAULT_STARTS, type OptimalProblem, type OptimalSearchOptions, type OptimalSearchResult, type OptimalityCriterion } from './optimal';
+export { optimalDesign, exchangeLevels, evenGroups, blockFactor, type OptimalDesignOptions } from './optimal-design';
+export { codedRegion, momentMatrix, columnFactorParts, randomFeasiblePoint, type CodedRegion } from './region';
+export { fastModel, type FastModel } from './model-rows';

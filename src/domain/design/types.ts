@@ -47,6 +47,10 @@ export interface DesignSpec {
   /** Runs already made (or already planned): they come first, flagged `existing`, and are never moved. */
   existingRuns?: Point[];
   seed?: number;
+  /** Optimal designs: random starts of the coordinate exchange (default 20). */
+  starts?: number;
+  /** Split-plot designs: η = σ²(whole plot) / σ²(sub-plot) (default 1). */
+  varianceRatio?: number;
 }
 
 export interface DesignRun {
@@ -82,6 +86,16 @@ export interface DesignDiagnostics {
   fraction?: FractionSummary;
   /** Central composite designs: the axial distance in coded units. */
   axialDistance?: number;
+  /** Optimal designs: what the search optimised and how far it got. */
+  optimal?: {
+    criterion: 'D' | 'I';
+    /** log |M| for D (M = X'V^-1 X for split-plot designs); average prediction variance trace(W M^-1) for I. */
+    value: number;
+    startsCompleted: number;
+    stopped: boolean;
+    wholePlots?: number;
+    varianceRatio?: number;
+  };
 }
 
 export interface FractionSummary {

@@ -34,6 +34,8 @@ export const designSpecSchema = z.object({
   disallowed: z.array(z.object({ levels: pointSchema })).max(200).optional(),
   existingRuns: z.array(pointSchema).max(10_000).optional(),
   seed: z.number().int().optional(),
+  starts: z.number().int().min(1).max(10_000).optional(),
+  varianceRatio: z.number().min(0).max(1000).optional(),
 });
 
 export type DesignSpecInput = z.infer<typeof designSpecSchema>;
