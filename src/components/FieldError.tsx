@@ -5,7 +5,7 @@ import type { ApiError } from './api-client';
 export function ErrorBox({ error }: { error: ApiError | null }) {
   if (!error) return null;
   return (
-    <div className="error" role="alert">
+    <div className="error" role="alert" data-testid="error">
       {error.field ? <strong>{error.field}: </strong> : null}
       {error.message.startsWith(`${error.field}: `) ? error.message.slice(error.field!.length + 2) : error.message}
     </div>
