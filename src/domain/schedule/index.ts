@@ -5,3 +5,4 @@ export type * from './types';
 export { planSchedule } from './plan';
 export { workingAvailability, type RigCalendar } from './calendar';
 export { wallTimeToUtc, zoneOffsetMs, dayInZone, clockInZone, isoWeekday, addCalendarDays } from './time-zone';
+export { replan, type ScheduleEvent } from './replan';

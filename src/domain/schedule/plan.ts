@@ -3,7 +3,7 @@
  * assembly of the answer (assignments, activities, counts, bounds, what did not fit and why).
  */
 import { changeoverLowerBound, makespanLowerBound, minimumRigTimeMs } from './bounds';
-import { MINUTE, prepare, type Prepared } from './prepare';
+import { MINUTE, prepare, type Prepared, type Unit } from './prepare';
 import { groupedPlan } from './grouped';
 import { sequentialFill, type RigPlan } from './sequential';
 import type { Infeasibility, LevelValue, RigActivity, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
@@ -79,8 +79,17 @@ function levelOf(p: Prepared, runIndex: number, factor: string): LevelValue {
   return p.runs[runIndex]!.run.values[factor]!;
 }
 
+/** How a re-plan measures: from the week's origin, with bounds over the work still to place. */
+export interface ResultFrame {
+  originMs: number;
+  /** Units still to be placed (the bounds refer to these, on top of the fixed work). */
+  boundUnits: Unit[];
+  fixedChanges: number;
+  fixedEndMs: number;
+}
+
 /** Turn rig timelines into the public answer. */
-export function assembleResult(p: Prepared, plan: RigPlan): ScheduleResult {
+export function assembleResult(p: Prepared, plan: RigPlan, frame?: ResultFrame): ScheduleResult {
   const placements = plan.states.flatMap((s) => s.placements);
   placements.sort((a, b) => a.start - b.start || a.rig - b.rig);
   const iso = (ms: number) => new Date(ms).toISOString();
@@ -109,14 +118,26 @@ export function assembleResult(p: Prepared, plan: RigPlan): ScheduleResult {
     }
   }
   const lastEnd = placements.reduce((m, x) => Math.max(m, x.end), -Infinity);
-  const makespanMinutes = placements.length ? minutes(lastEnd - p.originMs) : 0;
+  const originMs = frame ? Math.min(frame.originMs, p.originMs) : p.originMs;
+  const makespanMinutes = placements.length ? minutes(lastEnd - originMs) : 0;
 
+  // Bounds refer to the runs that were scheduled.
   const placedKeys = new Set(placements.map((x) => x.run.id));
-  const placedUnits = p.units.filter((u) => u.runs.every((r) => placedKeys.has(r.id)));
-  const lowerBound = {
-    changeovers: changeoverLowerBound(p, placedUnits),
-    makespanMinutes: minutes(makespanLowerBound(p, placedUnits) * MINUTE),
-  };
+  const boundUnits = (frame ? frame.boundUnits : p.units).filter((u) => u.runs.every((r) => placedKeys.has(r.id)));
+  const lowerBound = frame
+    ? {
+        changeovers: frame.fixedChanges + changeoverLowerBound(p, boundUnits),
+        makespanMinutes: minutes(
+          Math.max(
+            frame.fixedEndMs - originMs,
+            boundUnits.length ? p.originMs - originMs + makespanLowerBound(p, boundUnits) * MINUTE : 0,
+          ),
+        ),
+      }
+    : {
+        changeovers: changeoverLowerBound(p, boundUnits),
+        makespanMinutes: minutes(makespanLowerBound(p, boundUnits) * MINUTE),
+      };
   const { unscheduled, infeasibility } = explainUnplaced(p, plan);
   const result: ScheduleResult = {
     assignments,

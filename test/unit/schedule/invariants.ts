@@ -7,7 +7,7 @@ import type { ScheduleRequest, ScheduleResult } from '@/domain/schedule';
 
 const MIN = 60_000;
 
-export function scheduleViolations(req: ScheduleRequest, res: ScheduleResult): string[] {
+export function scheduleViolations(req: ScheduleRequest, res: ScheduleResult, options: { allowPartialWholePlots?: boolean } = {}): string[] {
   const bad: string[] = [];
   const runById = new Map(req.runs.map((r, i) => [r.id, { run: r, index: i }]));
   const duration = (id: string) => (runById.get(id)!.run.durationMinutes ?? req.defaultDurationMinutes!) * MIN;
@@ -94,7 +94,7 @@ export function scheduleViolations(req: ScheduleRequest, res: ScheduleResult): s
   const scheduled = new Set(res.assignments.map((a) => a.runId));
   const plotState = new Map<string, Set<boolean>>();
   for (const r of req.runs) if (r.wholePlot !== undefined) plotState.set(String(r.wholePlot), (plotState.get(String(r.wholePlot)) ?? new Set()).add(scheduled.has(r.id)));
-  for (const [wp, s] of plotState) if (s.size > 1) bad.push(`whole plot ${wp} is only partly scheduled`);
+  if (!options.allowPartialWholePlots) for (const [wp, s] of plotState) if (s.size > 1) bad.push(`whole plot ${wp} is only partly scheduled`);
   return bad;
 }
 
