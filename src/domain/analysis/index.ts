@@ -3,8 +3,11 @@
  * with coefficients, ANOVA, fit statistics, fitted values and residuals.
  */
 import { DomainError } from '../errors';
+import { parseTerm } from '../factors';
+import { canonicalAnalysis, quadraticForm, stationaryPoint } from './response-surface';
 import { fitLinearModel, type LinearModelFit } from './linear-model';
 import { buildModelFrame } from './model-frame';
+import { regressionDiagnostics } from './diagnostics';
 import type { AnalysisRequest, AnalysisResult } from './types';
 
 export * from './types';
@@ -14,6 +17,24 @@ export { buildModelFrame, inferFactors, type ModelFrame } from './model-frame';
 export { fitLinearModel, type LinearModelFit } from './linear-model';
 export { predictor, type Predictor } from './predict';
 export {
+  canonicalAnalysis,
+  contourGrid,
+  interactionPlot,
+  quadraticForm,
+  ridgeAnalysis,
+  sliceData,
+  stationaryPoint,
+  steepestAscent,
+  type CanonicalAnalysis,
+  type ContourGrid,
+  type InteractionPlot,
+  type PathPoint,
+  type QuadraticForm,
+  type StationaryPoint,
+  type SurfaceKind,
+} from './response-surface';
+export { leverages, regressionDiagnostics, type Diagnostics, type NormalPlotPoint } from './diagnostics';
+export {
   desirability,
   individualDesirability,
   maximizeDesirability,
@@ -22,6 +43,13 @@ export {
   type DesirabilityValue,
   type MaximizeDesirabilityOptions,
 } from './desirability';
+
+function diagnosticFields(request: AnalysisRequest, lm: LinearModelFit): Pick<AnalysisResult, 'press' | 'predictedRSquared' | 'diagnostics'> {
+  const wanted = request.diagnostics ?? lm.frame.n <= 20_000;
+  if (!wanted) return {};
+  const diagnostics = regressionDiagnostics(lm);
+  return { press: diagnostics.press, predictedRSquared: diagnostics.predictedRSquared, diagnostics };
+}
 
 function covarianceRows(lm: LinearModelFit): number[][] {
   const r = lm.fit.rank;
@@ -51,6 +79,7 @@ export function resultOfLinearFit(request: AnalysisRequest, lm: LinearModelFit):
     residualDf: lm.residualDf,
     ...(lm.lackOfFit ? { lackOfFit: lm.lackOfFit } : {}),
     ...(lm.residualDf > 0 ? { covariance: covarianceRows(lm) } : {}),
+    ...diagnosticFields(request, lm),
     fitted: Array.from(lm.fit.fitted),
     residuals: Array.from(lm.fit.residuals),
     observed: Array.from(frame.y),
@@ -64,5 +93,20 @@ export function analyze(request: AnalysisRequest): AnalysisResult {
     throw new DomainError('unsupported', `family "${family}" is not available yet; use "gaussian"`, 'family');
   }
   const frame = buildModelFrame(request);
-  return resultOfLinearFit(request, fitLinearModel(frame));
+  const result = resultOfLinearFit(request, fitLinearModel(frame));
+  return withSurface(result);
+}
+
+/** Add the stationary point and canonical analysis when the model has squared numeric terms. */
+function withSurface(result: AnalysisResult): AnalysisResult {
+  const numeric = new Set(result.factors.filter((f) => f.kind !== 'categorical').map((f) => f.name));
+  const squared = result.terms.some((t) => parseTerm(t).parts.some((p) => p.power === 2 && numeric.has(p.name)));
+  if (!squared || result.aliased.length > 0) return result;
+  try {
+    const form = quadraticForm(result);
+    return { ...result, stationaryPoint: stationaryPoint(result, form), canonical: canonicalAnalysis(form) };
+  } catch (e) {
+    if (e instanceof DomainError) return result; // beyond second order: no canonical analysis
+    throw e;
+  }
 }

@@ -19,6 +19,8 @@ export interface AnalysisRequest {
   /** Units of numeric factors in the model: default "coded" when factors are given, else "natural". */
   coding?: Coding;
   family?: Family;
+  /** Include regression diagnostics (default: when there are at most 20,000 runs). */
+  diagnostics?: boolean;
 }
 
 export interface CoefficientRow {
@@ -77,8 +79,15 @@ export interface AnalysisResult {
   residualStdError: number | null;
   residualDf: number;
   lackOfFit?: LackOfFit;
+  /** PRESS and predicted R² (null when a run has leverage 1); present with diagnostics. */
+  press?: number | null;
+  predictedRSquared?: number | null;
+  diagnostics?: import('./diagnostics').Diagnostics;
   /** Covariance matrix of the estimates (σ̂²·(XᵀX)⁻¹), in coefficient order; absent without residual df. */
   covariance?: number[][];
+  /** For models with squared numeric terms: the stationary point and canonical analysis. */
+  stationaryPoint?: import('./response-surface').StationaryPoint | null;
+  canonical?: import('./response-surface').CanonicalAnalysis;
   fitted: number[];
   residuals: number[];
   /** Response values of the runs used, in the same order as fitted and residuals. */

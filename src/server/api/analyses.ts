@@ -22,6 +22,7 @@ export const analysisRequestSchema = z.object({
   factors: z.array(analysisFactorSchema).max(50).optional(),
   coding: z.enum(['natural', 'coded']).optional(),
   family: z.enum(['gaussian', 'binomial']).optional(),
+  diagnostics: z.boolean().optional(),
 });
 
 export type AnalysisRequestInput = z.infer<typeof analysisRequestSchema>;
