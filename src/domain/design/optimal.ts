@@ -73,6 +73,8 @@ class ExchangeState {
   logDet = 0;
   iTrace = 0;
   ridge = 0;
+  /** Bumped whenever M^-1 changes; lets a run's M^-1 x be reused across its coordinates. */
+  version = 0;
   readonly plotSums: Float64Array[];
   readonly plotWeight: number[];
 
@@ -139,6 +141,7 @@ class ExchangeState {
       if (!l) throw new DomainError('singular_design', 'the design information matrix could not be factored', 'model');
     }
     this.minv.set(inverseFromCholesky(l, p));
+    this.version++;
     this.logDet = logDetFromCholesky(l, p);
     if (this.w) this.iTrace = traceProduct(this.w, this.minv, p);
   }
@@ -294,12 +297,14 @@ function randomStart(problem: OptimalProblem, rng: RandomSource, plotMembers: nu
 }
 
 // Scratch buffers reused across trials (the search is single-threaded).
+const zxOwner: { state: ExchangeState | null; run: number; version: number } = { state: null, run: -1, version: -1 };
 let scratchP = 0;
 let zx: Float64Array, zs: Float64Array, znew: Float64Array, xnew: Float64Array, snew: Float64Array, zsnew: Float64Array, wz: Float64Array[];
 let diffIndex: Int32Array, diffValue: Float64Array;
 function scratch(p: number) {
   if (scratchP === p) return;
   scratchP = p;
+  zxOwner.state = null;
   zx = new Float64Array(p);
   zs = new Float64Array(p);
   znew = new Float64Array(p);
@@ -313,6 +318,7 @@ function scratch(p: number) {
 
 const kScratch = new Array<number>(16).fill(0);
 
+
 /**
  * Try every candidate level of factor j in run i; apply the best improving change. Changing one
  * coordinate changes only the model columns that involve that factor, so M^-1 x' = M^-1 x + M^-1 d
@@ -324,7 +330,12 @@ function runExchange(st: ExchangeState, i: number, j: number, criterion: Optimal
   const coded = st.coded[i]!;
   const current = coded[j]!;
   const x = st.rows.subarray(i * p, (i + 1) * p);
-  matVec(minv, x, p, zx);
+  if (zxOwner.state !== st || zxOwner.run !== i || zxOwner.version !== st.version) {
+    matVec(minv, x, p, zx);
+    zxOwner.state = st;
+    zxOwner.run = i;
+    zxOwner.version = st.version;
+  }
   const plot = st.plotOf ? st.plotOf[i]! : -1;
   const c = plot >= 0 ? st.plotWeight[plot]! : 0;
   const split = plot >= 0 && c > 0;
@@ -484,6 +495,7 @@ function runExchange(st: ExchangeState, i: number, j: number, criterion: Optimal
       if (a !== b) minv[b * p + a] = minv[a * p + b]!;
     }
   }
+  st.version++;
   st.logDet = bestUpdate.logDet;
   st.iTrace = bestUpdate.trace;
   if (s) for (let a = 0; a < p; a++) s[a]! += bestUpdate.xnew[a]! - x[a]!;

@@ -1,0 +1,45 @@
+import type { BenchCase } from '../types';
+import type { Factor } from '../../src/domain/factors';
+import { generateDesign, type DesignResult } from '../../src/domain/design';
+
+const sixContinuous: Factor[] = Array.from({ length: 6 }, (_, i) => ({ name: `x${i + 1}`, kind: 'continuous', low: -1, high: 1 }));
+
+const splitPlotFactors: Factor[] = [
+  { name: 'surface', kind: 'categorical', levels: ['turf', 'ice', 'glass', 'soil'], hardToChange: true },
+  { name: 'payload', kind: 'continuous', low: 0, high: 2, unit: 'g' },
+  { name: 'gain', kind: 'continuous', low: 10, high: 30 },
+  { name: 'stiffness', kind: 'continuous', low: 50, high: 150, unit: 'N/m' },
+];
+
+const report = (_: unknown, last: unknown) => {
+  const d = last as DesignResult;
+  return { dEfficiency: d.diagnostics.dEfficiency, logDet: d.diagnostics.optimal?.value ?? NaN, starts: d.diagnostics.optimal?.startsCompleted ?? 0 };
+};
+
+export const cases: BenchCase[] = [
+  {
+    name: 'design: D-optimal, 6 factors, quadratic, 40 runs, 100 starts',
+    target: '≤ 1 s',
+    targetSeconds: 1,
+    run: () => generateDesign({ factors: sixContinuous, method: 'optimal', model: 'quadratic', runs: 40, starts: 100, seed: 1 }),
+    warmup: 1,
+    repeats: 5,
+    report,
+  },
+  {
+    name: 'design: split-plot, 4-level surface whole plots + 3 continuous, quadratic, 30 runs (8 whole plots, 20 starts)',
+    target: '≤ 2 s',
+    targetSeconds: 2,
+    run: () => generateDesign({ factors: splitPlotFactors, method: 'optimal', model: 'quadratic', runs: 30, wholePlots: 8, starts: 20, seed: 1 }),
+    warmup: 1,
+    repeats: 5,
+    report,
+  },
+  {
+    name: 'design: I-optimal, 6 factors, quadratic, 40 runs, 20 starts',
+    run: () => generateDesign({ factors: sixContinuous, method: 'optimal', model: 'quadratic', runs: 40, starts: 20, criterion: 'I', seed: 1 }),
+    warmup: 1,
+    repeats: 3,
+    report,
+  },
+];
