@@ -1,0 +1,75 @@
+/** `analyze(request)`: fit the requested model and answer with coefficients, ANOVA and fit statistics. */
+import { DomainError } from '../errors';
+import { parseTerm } from '../factors';
+import { canonicalAnalysis, quadraticForm, stationaryPoint } from './response-surface';
+import { fitLinearModel, type LinearModelFit } from './linear-model';
+import { buildModelFrame } from './model-frame';
+import { regressionDiagnostics } from './diagnostics';
+import type { AnalysisRequest, AnalysisResult } from './types';
+
+function diagnosticFields(request: AnalysisRequest, lm: LinearModelFit): Pick<AnalysisResult, 'press' | 'predictedRSquared' | 'diagnostics'> {
+  const wanted = request.diagnostics ?? lm.frame.n <= 20_000;
+  if (!wanted) return {};
+  const diagnostics = regressionDiagnostics(lm);
+  return { press: diagnostics.press, predictedRSquared: diagnostics.predictedRSquared, diagnostics };
+}
+
+function covarianceRows(lm: LinearModelFit): number[][] {
+  const r = lm.fit.rank;
+  const v = lm.fit.unscaledCovariance;
+  return Array.from({ length: r }, (_, i) => Array.from({ length: r }, (_, j) => v[i * r + j]! * lm.meanSquaredError));
+}
+
+/** Result fields shared by every gaussian analysis, from a linear model fit. */
+export function resultOfLinearFit(request: AnalysisRequest, lm: LinearModelFit): AnalysisResult {
+  const { frame } = lm;
+  return {
+    family: 'gaussian',
+    response: request.response,
+    coding: frame.coding,
+    factors: frame.factors,
+    n: frame.n,
+    excludedRows: frame.excludedRows,
+    intercept: frame.intercept,
+    terms: frame.terms.filter((t) => t.parts.length > 0).map((t) => t.label),
+    coefficients: lm.coefficients,
+    aliased: lm.aliased,
+    rank: lm.fit.rank,
+    anova: lm.anova,
+    rSquared: lm.rSquared,
+    adjustedRSquared: lm.adjustedRSquared,
+    residualStdError: lm.residualStdError,
+    residualDf: lm.residualDf,
+    ...(lm.lackOfFit ? { lackOfFit: lm.lackOfFit } : {}),
+    ...(lm.residualDf > 0 ? { covariance: covarianceRows(lm) } : {}),
+    ...diagnosticFields(request, lm),
+    fitted: Array.from(lm.fit.fitted),
+    residuals: Array.from(lm.fit.residuals),
+    observed: Array.from(frame.y),
+  };
+}
+
+/** Fit the requested model and answer with coefficients, ANOVA and fit statistics. */
+export function analyze(request: AnalysisRequest): AnalysisResult {
+  const family = request.family ?? 'gaussian';
+  if (family !== 'gaussian') {
+    throw new DomainError('unsupported', `family "${family}" is not available yet; use "gaussian"`, 'family');
+  }
+  const frame = buildModelFrame(request);
+  const result = resultOfLinearFit(request, fitLinearModel(frame));
+  return withSurface(result);
+}
+
+/** Add the stationary point and canonical analysis when the model has squared numeric terms. */
+function withSurface(result: AnalysisResult): AnalysisResult {
+  const numeric = new Set(result.factors.filter((f) => f.kind !== 'categorical').map((f) => f.name));
+  const squared = result.terms.some((t) => parseTerm(t).parts.some((p) => p.power === 2 && numeric.has(p.name)));
+  if (!squared || result.aliased.length > 0) return result;
+  try {
+    const form = quadraticForm(result);
+    return { ...result, stationaryPoint: stationaryPoint(result, form), canonical: canonicalAnalysis(form) };
+  } catch (e) {
+    if (e instanceof DomainError) return result; // beyond second order: no canonical analysis
+    throw e;
+  }
+}
