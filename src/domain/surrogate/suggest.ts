@@ -321,7 +321,9 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: C
     // A new point that lands on an observed setting is a replicate of it.
     if (pick.replicateOf < 0) {
       const i = model.inputs.findIndex((x) => sameSetting(x, pick.coded));
-      if (i >= 0 && feasibleCoded(ctx.data.space, model.inputs[i]!)) pick = { ...pick, coded: model.inputs[i]!, replicateOf: i };
+      if (i >= 0 && feasibleCoded(ctx.data.space, model.inputs[i]!) && !tooClose(model.inputs[i]!, chosenCoded) && (ctx.relaxed || probabilityOk(ctx, model.inputs[i]!) >= ctx.threshold)) {
+        pick = { ...pick, coded: model.inputs[i]!, replicateOf: i };
+      }
     }
     const g = sign * meanStandardised(model, pick.coded);
     const sd = Math.sqrt(posterior.variance(pick.coded));
