@@ -29,7 +29,7 @@ export interface MoveCheck {
   assignments: Assignment[];
 }
 
-// Ganju & Lucas (1999), Journal of Statistical Planning and Inference 81:129-140
+// Ganju & Lucas (1999), Journal of Statistical Planning and Inference 81:129-140 (details from memory)
 export const RANDOMISATION_RESTRICTION_MESSAGE =
   'the order of runs inside a whole plot is part of the design’s randomisation; sorting them by convenience turns ' +
   'the randomised order into an unplanned split-plot structure, and the analysis would then under- or overstate ' +

@@ -1,6 +1,6 @@
 /** POST /api/v1/schedules: the request schema and the handler (stateless: runs and rigs in, schedule out). */
 import { z } from 'zod';
-import { planSchedule, type ScheduleRequest, type ScheduleResult } from '@/domain/schedule';
+import { planSchedule, replan, type ScheduleEvent, type ScheduleRequest, type ScheduleResult } from '@/domain/schedule';
 import { parseWith } from './validation';
 
 const instant = z.iso.datetime({ offset: true, message: 'write an ISO 8601 instant with a zone, e.g. 2026-03-02T08:00:00Z' });
@@ -37,11 +37,28 @@ export const scheduleRequestSchema = z.object({
   blockDays: z.record(z.string(), z.iso.date({ message: 'write a calendar day as yyyy-MM-dd' })).optional(),
   strategy: z.enum(['sequential', 'grouped']).optional(),
   seed: z.number().int().optional(),
+  /** Re-planning: trials already done (kept as they happened), what went wrong, and the present instant. */
+  fixed: z.array(z.object({ runId: z.string().min(1).max(80), rig: z.string().min(1).max(80), start: instant, end: instant })).max(5000).optional(),
+  events: z
+    .array(
+      z.discriminatedUnion('kind', [
+        z.object({ kind: z.literal('trial_failed'), runId: z.string().min(1).max(80), repeat: z.boolean().optional() }),
+        z.object({ kind: z.literal('trial_skipped'), runId: z.string().min(1).max(80) }),
+        z.object({ kind: z.literal('rig_down'), rig: z.string().min(1).max(80), start: instant, end: instant.optional() }),
+      ]),
+    )
+    .max(5000)
+    .optional(),
+  now: instant.optional(),
 });
 
 export type ScheduleRequestInput = z.infer<typeof scheduleRequestSchema>;
 
+/** Plan, or re-plan when `fixed`, `events` or `now` is given. */
 export function handleScheduleRequest(body: unknown): ScheduleResult {
-  const request: ScheduleRequest = parseWith(scheduleRequestSchema, body);
-  return planSchedule(request);
+  const { fixed, events, now, ...request } = parseWith(scheduleRequestSchema, body);
+  if (fixed !== undefined || events !== undefined || now !== undefined) {
+    return replan(request as ScheduleRequest, fixed ?? [], (events ?? []) as ScheduleEvent[], now);
+  }
+  return planSchedule(request as ScheduleRequest);
 }

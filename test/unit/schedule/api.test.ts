@@ -48,4 +48,17 @@ describe('POST /api/v1/schedules', () => {
     expect(json.unscheduled).toEqual([{ runId: 'r2', reason: expect.stringMatching(/not enough rig time/) }]);
     expect(json.infeasibility[0]).toMatchObject({ constraint: 'rig_hours', requiredMinutes: 160, availableMinutes: 120, shortByMinutes: 40 });
   });
+
+  it('re-plans when finished trials and events are sent', () => {
+    const res = handleScheduleRequest({
+      ...body,
+      fixed: [{ runId: 'r1', rig: 'A', start: '2026-03-02T08:00:00Z', end: '2026-03-02T08:30:00Z' }],
+      events: [{ kind: 'rig_down', rig: 'A', start: '2026-03-02T08:30:00Z', end: '2026-03-02T08:50:00Z' }],
+      now: '2026-03-02T08:30:00Z',
+    });
+    expect(res.assignments[0]).toEqual({ runId: 'r1', rig: 'A', start: '2026-03-02T08:00:00.000Z', end: '2026-03-02T08:30:00.000Z' });
+    // The swap to grass waits until the rig is back at 08:50.
+    expect(res.assignments[1]).toMatchObject({ runId: 'r2', start: '2026-03-02T09:30:00.000Z' });
+    expect(() => handleScheduleRequest({ ...body, events: [{ kind: 'rig_down', rig: 'A' }] })).toThrow(expect.objectContaining({ field: 'events[0].start' }));
+  });
 });
