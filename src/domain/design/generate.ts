@@ -251,6 +251,7 @@ export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions =
   ];
   runs.forEach((r, i) => (r.order = i + 1));
   const terms = standardTerms(spec.factors, model);
+  const diagnosticsOptions = { constraints: spec.constraints, disallowed: spec.disallowed, power: spec.power ?? {}, seed };
   // Blocks enter the diagnostics model as a categorical factor (existing runs in block 0).
   const blockIds = new Set(runs.map((r) => r.block ?? 0));
   let base: DesignDiagnostics;
@@ -258,9 +259,9 @@ export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions =
     const ids = [...blockIds].sort((a, b) => a - b);
     const block = { ...blockFactor(spec.factors, ids.length), levels: ids.map(String) };
     const allTerms = [...terms, { label: block.name, parts: [{ name: block.name, power: 1 }] }];
-    base = designDiagnostics([...spec.factors, block], allTerms, runs.map((r) => [...r.coded, ids.indexOf(r.block ?? 0)]), notes);
+    base = designDiagnostics([...spec.factors, block], allTerms, runs.map((r) => [...r.coded, ids.indexOf(r.block ?? 0)]), notes, diagnosticsOptions);
   } else {
-    base = designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes);
+    base = designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes, diagnosticsOptions);
   }
   const diagnostics: DesignDiagnostics = { ...base, ...extras };
   return { runs, diagnostics, method: spec.method, model, terms: terms.map((t) => t.label), seed };

@@ -13,3 +13,5 @@ export { coordinateExchange, DEFAULT_STARTS, type OptimalProblem, type OptimalSe
 export { optimalDesign, exchangeLevels, evenGroups, blockFactor, type OptimalDesignOptions } from './optimal-design';
 export { codedRegion, momentMatrix, columnFactorParts, randomFeasiblePoint, type CodedRegion } from './region';
 export { fastModel, type FastModel } from './model-rows';
+export { noncentralFCdf, fTestPower } from './power';
+export { varianceInflation, columnCorrelations, fractionOfDesignSpace, termPower, FDS_FRACTIONS, type DiagnosticsOptions } from './diagnostics';

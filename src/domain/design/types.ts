@@ -51,6 +51,8 @@ export interface DesignSpec {
   starts?: number;
   /** Split-plot designs: η = σ²(whole plot) / σ²(sub-plot) (default 1). */
   varianceRatio?: number;
+  /** Settings of the power diagnostics (always computed; these defaults: effect 2σ, σ = 1, α = 0.05). */
+  power?: PowerSettings;
 }
 
 export interface DesignRun {
@@ -78,6 +80,23 @@ export interface DesignDiagnostics {
   dEfficiency: number;
   /** p / trace((X'X / n)^-1). */
   aEfficiency: number;
+  /** trace(W) / trace(W (X'X / n)^-1), W the region's moment matrix: 1 for a design with X'X = n I. */
+  iEfficiency: number;
+  /** p / max over the region of n f(x)'(X'X)^-1 f(x). */
+  gEfficiency: number;
+  /** Average scaled prediction variance over the region, n trace(W (X'X)^-1). */
+  averagePredictionVariance: number;
+  /** Largest scaled prediction variance found over the region. */
+  maxPredictionVariance: number;
+  /** Largest variance inflation factor of the model columns (1 when they are orthogonal). */
+  maxVif: number;
+  vif: { column: string; vif: number }[];
+  /** Correlations between model columns (intercept left out). */
+  correlation: { labels: string[]; values: number[][] };
+  /** Scaled prediction variance at fractions 0, 0.05, ..., 1 of the region. */
+  fractionOfDesignSpace: { fraction: number[]; scaledPredictionVariance: number[] };
+  /** Power of each term's F test, when power settings were given. */
+  power?: TermPower[];
   /** Degrees of freedom left for error: runs − parameters. */
   errorDegreesOfFreedom: number;
   /** Plain-language remarks (e.g. axial points beyond the factor range). */
@@ -110,6 +129,23 @@ export interface FractionSummary {
   wordLengthPattern: Record<string, number>;
   /** For each main effect and two-factor interaction, the others it is aliased with. */
   aliases: { effect: string; aliases: string[] }[];
+}
+
+export interface PowerSettings {
+  /** Change in the response from a factor's low to high setting that should be detected (default 2σ). */
+  effectSize?: number;
+  /** Residual standard deviation (default 1). */
+  sigma?: number;
+  /** Test level (default 0.05). */
+  alpha?: number;
+}
+
+export interface TermPower {
+  term: string;
+  numeratorDf: number;
+  denominatorDf: number;
+  noncentrality: number;
+  power: number;
 }
 
 export interface DesignResult {

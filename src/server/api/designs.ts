@@ -36,6 +36,9 @@ export const designSpecSchema = z.object({
   seed: z.number().int().optional(),
   starts: z.number().int().min(1).max(10_000).optional(),
   varianceRatio: z.number().min(0).max(1000).optional(),
+  power: z
+    .object({ effectSize: z.number().positive().optional(), sigma: z.number().positive().optional(), alpha: z.number().gt(0).lt(1).optional() })
+    .optional(),
 });
 
 export type DesignSpecInput = z.infer<typeof designSpecSchema>;
