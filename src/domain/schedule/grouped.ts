@@ -56,10 +56,9 @@ function buildGroups(p: Prepared, units: readonly Unit[]): Group[] {
   const groups: Group[] = [];
   for (const unit of units) {
     // Only factors whose change costs time tell groups apart.
-    const costly = (levels: readonly string[]) => levels.map((l, k) => (p.changeoverFactors[k]!.ms > 0 ? l : '')).join('\u0001');
     const first = unit.runs[0]!.levels;
     const last = unit.runs[unit.runs.length - 1]!.levels;
-    const key = `${costly(first)}\u0002${costly(last)}`;
+    const key = unitKey(p, unit);
     let g = map.get(key);
     if (!g) {
       g = { key, first, last, units: [], loadMs: 0, firstIndex: unit.firstIndex };
@@ -223,7 +222,7 @@ function remainingCapacity(state: RigState, window?: { start: number; end: numbe
 /** Plan `units` onto the rigs after `initial` (empty rigs, or the work already fixed). */
 function planUnits(p: Prepared, units: readonly Unit[], initial: readonly RigState[], window?: { start: number; end: number }): RigPlan {
   if (units.length === 0) return { states: initial.slice(), unplaced: [], notes: [] };
-  if (exactSearchSize(units.length, initial.length) <= EXACT_SEARCH_LIMIT) return exactPlan(p, units, initial);
+  if (exactSearchSize(units.length, initial.length) <= EXACT_SEARCH_LIMIT) return keepDesignOrder(p, initial, units, exactPlan(p, units, initial));
   const pinned = units.filter((u) => u.rigIndex !== undefined);
   const free = units.filter((u) => u.rigIndex === undefined);
   const groups = buildGroups(p, free);
@@ -248,7 +247,45 @@ function planUnits(p: Prepared, units: readonly Unit[], initial: readonly RigSta
     }
     if (best && best.plan.unplaced.length === 0 && countChanges(best.plan) <= lowerBound) break;
   }
-  return improveByMoves(p, initial, best!).plan;
+  return keepDesignOrder(p, initial, units, improveByMoves(p, initial, best!).plan);
+}
+
+/** Group key of a unit: its first and last levels of the factors whose change costs time. */
+function unitKey(p: Prepared, unit: Unit): string {
+  const costly = (levels: readonly string[]) => levels.map((l, k) => (p.changeoverFactors[k]!.ms > 0 ? l : '')).join('\u0001');
+  return `${costly(unit.runs[0]!.levels)}\u0002${costly(unit.runs[unit.runs.length - 1]!.levels)}`;
+}
+
+/**
+ * Where whole plots with the same levels follow one another on a rig, put them back in the design's
+ * order, as long as that costs no unplaced run, no changeover and no finishing time.
+ */
+function keepDesignOrder(p: Prepared, initial: readonly RigState[], units: readonly Unit[], plan: RigPlan): RigPlan {
+  const unitOfRun = new Map<string, Unit>();
+  for (const u of units) for (const r of u.runs) unitOfRun.set(r.id, u);
+  let changed = false;
+  const sequence = plan.states.map((state) => {
+    const list: Unit[] = [];
+    for (const x of state.placements) {
+      const u = unitOfRun.get(x.run.id);
+      if (u && list[list.length - 1] !== u) list.push(u);
+    }
+    const out: Unit[] = [];
+    let i = 0;
+    while (i < list.length) {
+      let j = i + 1;
+      const key = unitKey(p, list[i]!);
+      while (j < list.length && unitKey(p, list[j]!) === key && list[j]!.rigIndex === list[i]!.rigIndex) j++;
+      const stretch = list.slice(i, j).sort((a, b) => a.firstIndex - b.firstIndex);
+      if (stretch.some((u, k) => u !== list[i + k])) changed = true;
+      out.push(...stretch);
+      i = j;
+    }
+    return out;
+  });
+  if (!changed || plan.unplaced.length > 0) return plan;
+  const ordered = simulate(p, initial, sequence);
+  return better(plan, ordered) ? plan : ordered;
 }
 
 /**

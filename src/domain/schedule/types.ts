@@ -57,6 +57,7 @@ export interface ScheduleRequest {
    * `grouped` (default): order whole plots to save changeovers, then finishing time.
    */
   strategy?: 'sequential' | 'grouped';
+  /** Accepted for symmetry with the other endpoints; the solver is deterministic and draws no random numbers. */
   seed?: number;
 }
 

@@ -109,6 +109,14 @@ describe('grouped solver', () => {
     expect(res.changeovers).toBe(2); // 4 surfaces on 2 rigs: 2 per rig, 1 swap each
     expect(res.lowerBound.changeovers).toBe(2);
     expect(scheduleViolations(req, res)).toEqual([]);
+    // Same-surface whole plots on a rig follow the design's order (it costs nothing here).
+    for (const rig of ['A', 'B']) {
+      const plots = res.assignments.filter((a) => a.rig === rig).map((a) => runs.find((r) => r.id === a.runId)!);
+      for (const surface of surfaces) {
+        const order = plots.filter((r) => r.values.surface === surface).map((r) => r.wholePlot);
+        expect(order).toEqual(order.slice().sort((x, y) => x - y));
+      }
+    }
     const sequential = planSchedule({ ...req, strategy: 'sequential' });
     expect(sequential.changeovers).toBeGreaterThan(10);
   });
