@@ -1,8 +1,8 @@
 /**
  * Reading a motion track from CSV bytes: a hand-tuned byte-level number parser that reads only the
- * mapped columns into typed arrays. It is the hot path for long tracks (bench/cases/tracks.ts shows
- * why a general CSV library is not used here). Cells that are blank or not numbers (NaN, NA, null)
- * make the row a dropout; such rows are counted and skipped.
+ * mapped columns into typed arrays, from one buffer or from chunks as they arrive. It is the hot path
+ * for long tracks (bench/cases/tracks.ts shows why a general CSV library is not used here). Cells that
+ * are blank or not numbers (NaN, NA, null) make the row a dropout; such rows are counted and skipped.
  */
 import { invalidInput } from '@/domain/errors';
 
@@ -87,180 +87,306 @@ export interface ParseTrackOptions {
   timeScale?: number;
   /** Multiply lengths by this to get metres (default 1). */
   lengthScale?: number;
+  /** Expected total size in bytes, to size the sample arrays once (optional). */
+  sizeHint?: number;
 }
 
-/**
- * Parse the mapped columns of a track CSV held as bytes (UTF-8 or ASCII). The first line is the
- * header; the delimiter is the most frequent of comma, semicolon and tab in it. With a semicolon or tab
- * delimiter a decimal comma is accepted too.
- */
-export function parseTrackCsv(bytes: Uint8Array, columns: TrackColumns, options: ParseTrackOptions = {}): ParsedTrack {
-  const timeScale = options.timeScale ?? 1;
-  const lengthScale = options.lengthScale ?? 1;
-  let pos = 0;
-  if (bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) pos = 3;
-  // Skip blank lines before the header.
-  while (pos < bytes.length && (bytes[pos] === NEWLINE || bytes[pos] === CR)) pos++;
-  let headerEnd = bytes.indexOf(NEWLINE, pos);
-  if (headerEnd < 0) headerEnd = bytes.length;
-  const headerLine = new TextDecoder().decode(bytes.subarray(pos, headerEnd)).replace(/\r$/, '');
-  if (headerLine.trim() === '') throw invalidInput('(body)', 'the CSV is empty; send a header line and one row per sample');
-  const delimiter = pickDelimiter(headerLine);
-  const header = headerCells(headerLine, delimiter);
-  const roleOfColumn = new Int8Array(header.length).fill(-1);
+interface Layout {
+  header: string[];
+  delimiter: string;
+  /** Role of each column: 0 time, 1 x, 2 y, 3 z, −1 not read. */
+  roles: Int8Array;
+  lastWanted: number;
+}
+
+function layoutFromHeader(line: string, columns: TrackColumns): Layout {
+  if (line.trim() === '') throw invalidInput('(body)', 'the CSV is empty; send a header line and one row per sample');
+  const delimiter = pickDelimiter(line);
+  const header = headerCells(line, delimiter);
+  const roles = new Int8Array(header.length).fill(-1);
   const fields: [keyof TrackColumns, number][] = [['time', 0], ['x', 1], ['y', 2], ['z', 3]];
   for (const [field, role] of fields) {
     const at = findColumn(header, columns[field], field);
-    if (roleOfColumn[at] !== -1) throw invalidInput(field, `${field}: column '${columns[field]}' is already mapped to another coordinate; map each to its own column`);
-    roleOfColumn[at] = role;
+    if (roles[at] !== -1) throw invalidInput(field, `${field}: column '${columns[field]}' is already mapped to another coordinate; map each to its own column`);
+    roles[at] = role;
   }
   let lastWanted = 0;
-  for (let k = 0; k < roleOfColumn.length; k++) if (roleOfColumn[k] !== -1) lastWanted = k;
+  for (let k = 0; k < roles.length; k++) if (roles[k] !== -1) lastWanted = k;
+  return { header, delimiter, roles, lastWanted };
+}
 
-  // Capacity: one sample per newline (plus a last line without one).
-  let capacity = 1;
-  for (let p = bytes.indexOf(NEWLINE, headerEnd + 1); p >= 0; p = bytes.indexOf(NEWLINE, p + 1)) capacity++;
-  const t = new Float64Array(capacity);
-  const x = new Float64Array(capacity);
-  const y = new Float64Array(capacity);
-  const z = new Float64Array(capacity);
+/**
+ * Streaming reader: `push` chunks of a track CSV in order, then `finish`. Lines may be split across
+ * chunks. The first line is the header; the delimiter is the most frequent of comma, semicolon and tab
+ * in it. With a semicolon or tab delimiter a decimal comma is accepted too.
+ */
+export class TrackCsvReader {
+  private readonly columns: TrackColumns;
+  private readonly timeScale: number;
+  private readonly lengthScale: number;
+  private readonly sizeHint: number;
+  private layout: Layout | null = null;
+  private carry: Uint8Array = new Uint8Array(0);
+  private started = false;
+  private t = new Float64Array(0);
+  private x = new Float64Array(0);
+  private y = new Float64Array(0);
+  private z = new Float64Array(0);
+  private n = 0;
+  private rows = 0;
+  private dropped = 0;
 
-  const delim = delimiter.charCodeAt(0);
-  const decimalAlt = delimiter === ',' ? 46 : 44;
-  const roles = roleOfColumn.length;
-  const end = bytes.length;
-  let n = 0;
-  let rows = 0;
-  let dropped = 0;
-  let v0 = 0, v1 = 0, v2 = 0, v3 = 0;
-  pos = headerEnd + 1;
-  // One pass over the bytes. Number reading is inlined: with at most 15 significant digits and a
-  // decimal exponent within ±22 the result is one correctly rounded operation, identical to Number();
-  // Clinger (1990), PLDI '90:92-101. Anything else falls back to Number() on the cell.
-  while (pos < end) {
-    let c = bytes[pos]!;
-    if (c === NEWLINE) {
-      pos++;
-      continue;
+  constructor(columns: TrackColumns, options: ParseTrackOptions = {}) {
+    this.columns = columns;
+    this.timeScale = options.timeScale ?? 1;
+    this.lengthScale = options.lengthScale ?? 1;
+    this.sizeHint = options.sizeHint ?? 0;
+  }
+
+  /** Add the next chunk of the file. */
+  push(chunk: Uint8Array): void {
+    let from = 0;
+    if (!this.started) {
+      this.started = true;
+      if (chunk[0] === 0xef && chunk[1] === 0xbb && chunk[2] === 0xbf) from = 3;
     }
-    if (c === CR && (pos + 1 >= end || bytes[pos + 1] === NEWLINE)) {
-      pos += 2;
-      continue;
+    const lastNewline = chunk.lastIndexOf(NEWLINE);
+    if (lastNewline < from) {
+      this.carry = concat(this.carry, chunk.subarray(from));
+      return;
     }
-    v0 = v1 = v2 = v3 = Number.NaN;
-    let column = 0;
-    for (;;) {
-      const role = column < roles ? roleOfColumn[column]! : -1;
-      if (role >= 0) {
-        let value = Number.NaN;
-        let i = pos;
-        c = i < end ? bytes[i]! : NEWLINE;
-        if (c === QUOTE) {
-          // Quoted cell: read up to the closing quote, then parse the inside.
-          let q = i + 1;
-          while (q < end && bytes[q] !== QUOTE) q++;
-          value = slowNumber(bytes, i + 1, q);
-          i = q + 1;
-        } else {
-          while (c === SPACE) c = ++i < end ? bytes[i]! : NEWLINE;
-          let negative = false;
-          if (c === 45 /* - */) {
-            negative = true;
-            c = ++i < end ? bytes[i]! : NEWLINE;
-          } else if (c === 43 /* + */) c = ++i < end ? bytes[i]! : NEWLINE;
-          const numberStart = i;
-          let mantissa = 0;
-          let digits = 0;
-          let exponent = 0;
-          let sawDigit = false;
-          let exact = true;
-          while (c >= 48 && c <= 57) {
-            sawDigit = true;
-            if (digits < 15) {
-              mantissa = mantissa * 10 + (c - 48);
-              if (mantissa !== 0) digits++;
-            } else {
-              exponent++;
-              if (c !== 48) exact = false;
-            }
-            c = ++i < end ? bytes[i]! : NEWLINE;
-          }
-          if (c === 46 || c === decimalAlt) {
-            c = ++i < end ? bytes[i]! : NEWLINE;
+    if (this.carry.length > 0) {
+      // Finish the line begun in an earlier chunk.
+      const firstNewline = chunk.indexOf(NEWLINE, from);
+      this.lines(concat(this.carry, chunk.subarray(from, firstNewline + 1)), 0);
+      this.carry = new Uint8Array(0);
+      from = firstNewline + 1;
+    }
+    if (from <= lastNewline) this.lines(chunk.subarray(0, lastNewline + 1), from);
+    // Copy the unfinished line: the caller may reuse the chunk's memory (and Buffer#slice does not copy).
+    this.carry = concat(new Uint8Array(0), chunk.subarray(lastNewline + 1));
+  }
+
+  /** The samples read; the reader is spent afterwards. */
+  finish(): ParsedTrack {
+    if (this.carry.length > 0) {
+      const last = new Uint8Array(this.carry.length + 1);
+      last.set(this.carry);
+      last[this.carry.length] = NEWLINE;
+      this.carry = new Uint8Array(0);
+      this.lines(last, 0);
+    }
+    if (!this.layout) throw invalidInput('(body)', 'the CSV is empty; send a header line and one row per sample');
+    const n = this.n;
+    return {
+      t: this.t.subarray(0, n), x: this.x.subarray(0, n), y: this.y.subarray(0, n), z: this.z.subarray(0, n),
+      length: n, rows: this.rows, droppedRows: this.dropped, header: this.layout.header, delimiter: this.layout.delimiter,
+    };
+  }
+
+  private grow(bytes: Uint8Array, from: number): void {
+    let capacity: number;
+    if (this.t.length === 0) {
+      // Estimate rows from the bytes per line of the first lines and the expected size.
+      let lines = 0;
+      let p = from;
+      const probeEnd = Math.min(bytes.length, from + 65536);
+      while (p < probeEnd) {
+        const q = bytes.indexOf(NEWLINE, p);
+        if (q < 0 || q >= probeEnd) break;
+        lines++;
+        p = q + 1;
+      }
+      const perLine = lines > 0 ? (p - from) / lines : 64;
+      capacity = Math.ceil((Math.max(this.sizeHint, bytes.length - from) / Math.max(perLine, 4)) * 1.02) + 16;
+    } else capacity = Math.ceil(this.t.length * 1.5) + 16;
+    const resize = (a: Float64Array) => {
+      const b = new Float64Array(capacity);
+      b.set(a.subarray(0, this.n));
+      return b;
+    };
+    this.t = resize(this.t);
+    this.x = resize(this.x);
+    this.y = resize(this.y);
+    this.z = resize(this.z);
+  }
+
+  /** Parse whole lines bytes[from..end), where the last byte is a newline. */
+  private lines(bytes: Uint8Array, from: number): void {
+    let pos = from;
+    if (!this.layout) {
+      // Skip blank lines, then read the header.
+      while (bytes[pos] === NEWLINE || bytes[pos] === CR) {
+        pos++;
+        if (pos >= bytes.length) return;
+      }
+      const headerEnd = bytes.indexOf(NEWLINE, pos);
+      const line = new TextDecoder().decode(bytes.subarray(pos, headerEnd)).replace(/\r$/, '');
+      this.layout = layoutFromHeader(line, this.columns);
+      pos = headerEnd + 1;
+    }
+    if (pos >= bytes.length) return;
+    if (this.t.length === 0) this.grow(bytes, pos);
+    const { roles, lastWanted, delimiter } = this.layout;
+    const delim = delimiter.charCodeAt(0);
+    const decimalAlt = delimiter === ',' ? 46 : 44;
+    const roleCount = roles.length;
+    const timeScale = this.timeScale;
+    const lengthScale = this.lengthScale;
+    const end = bytes.length;
+    let t = this.t, x = this.x, y = this.y, z = this.z;
+    let capacity = t.length;
+    let n = this.n;
+    let rows = this.rows;
+    let dropped = this.dropped;
+    let v0 = 0, v1 = 0, v2 = 0, v3 = 0;
+    // Every line ends with a newline inside [from, end): each scan below stops at one, so no scan
+    // needs a bounds check. Number reading is inlined: with at most 15 significant digits and a
+    // decimal exponent within ±22 the result is one correctly rounded operation, identical to Number();
+    // Clinger (1990), PLDI '90:92-101. Anything else falls back to Number() on the cell.
+    while (pos < end) {
+      let c = bytes[pos]!;
+      if (c === NEWLINE) {
+        pos++;
+        continue;
+      }
+      if (c === CR && bytes[pos + 1] === NEWLINE) {
+        pos += 2;
+        continue;
+      }
+      v0 = v1 = v2 = v3 = Number.NaN;
+      let column = 0;
+      for (;;) {
+        const role = column < roleCount ? roles[column]! : -1;
+        if (role >= 0) {
+          let value = Number.NaN;
+          let i = pos;
+          c = bytes[i]!;
+          if (c === QUOTE) {
+            // Quoted cell: read up to the closing quote (or the line end), then parse the inside.
+            let q = i + 1;
+            while (bytes[q] !== QUOTE && bytes[q] !== NEWLINE) q++;
+            value = slowNumber(bytes, i + 1, q);
+            i = bytes[q] === QUOTE ? q + 1 : q;
+          } else {
+            while (c === SPACE) c = bytes[++i]!;
+            let negative = false;
+            if (c === 45 /* - */) {
+              negative = true;
+              c = bytes[++i]!;
+            } else if (c === 43 /* + */) c = bytes[++i]!;
+            const numberStart = i;
+            let mantissa = 0;
+            let digits = 0;
+            let exponent = 0;
+            let sawDigit = false;
+            let exact = true;
             while (c >= 48 && c <= 57) {
               sawDigit = true;
               if (digits < 15) {
                 mantissa = mantissa * 10 + (c - 48);
                 if (mantissa !== 0) digits++;
-                exponent--;
-              } else if (c !== 48) exact = false;
-              c = ++i < end ? bytes[i]! : NEWLINE;
-            }
-          }
-          if (sawDigit && (c === 101 || c === 69) /* e E */) {
-            let j = i + 1;
-            let d = j < end ? bytes[j]! : NEWLINE;
-            let expNegative = false;
-            if (d === 45) {
-              expNegative = true;
-              d = ++j < end ? bytes[j]! : NEWLINE;
-            } else if (d === 43) d = ++j < end ? bytes[j]! : NEWLINE;
-            if (d >= 48 && d <= 57) {
-              let e = 0;
-              while (d >= 48 && d <= 57) {
-                if (e < 100000) e = e * 10 + (d - 48);
-                d = ++j < end ? bytes[j]! : NEWLINE;
+              } else {
+                exponent++;
+                if (c !== 48) exact = false;
               }
-              exponent += expNegative ? -e : e;
-              i = j;
-              c = d;
+              c = bytes[++i]!;
+            }
+            if (c === 46 || c === decimalAlt) {
+              c = bytes[++i]!;
+              while (c >= 48 && c <= 57) {
+                sawDigit = true;
+                if (digits < 15) {
+                  mantissa = mantissa * 10 + (c - 48);
+                  if (mantissa !== 0) digits++;
+                  exponent--;
+                } else if (c !== 48) exact = false;
+                c = bytes[++i]!;
+              }
+            }
+            if (sawDigit && (c === 101 || c === 69) /* e E */) {
+              let j = i + 1;
+              let d = bytes[j]!;
+              let expNegative = false;
+              if (d === 45) {
+                expNegative = true;
+                d = bytes[++j]!;
+              } else if (d === 43) d = bytes[++j]!;
+              if (d >= 48 && d <= 57) {
+                let e = 0;
+                while (d >= 48 && d <= 57) {
+                  if (e < 100000) e = e * 10 + (d - 48);
+                  d = bytes[++j]!;
+                }
+                exponent += expNegative ? -e : e;
+                i = j;
+                c = d;
+              }
+            }
+            const numberEnd = i;
+            while (c === SPACE) c = bytes[++i]!;
+            if (sawDigit && (c === delim || c === NEWLINE || c === CR)) {
+              if (exact && exponent === 0) value = mantissa;
+              else if (exact && exponent < 0 && exponent >= -22) value = mantissa / POW10[-exponent]!;
+              else if (exact && exponent > 0 && exponent <= 22) value = mantissa * POW10[exponent]!;
+              else if (exact && mantissa === 0) value = 0;
+              else value = slowNumber(bytes, numberStart, numberEnd);
+              if (negative) value = -value;
             }
           }
-          const numberEnd = i;
-          while (c === SPACE) c = ++i < end ? bytes[i]! : NEWLINE;
-          if (sawDigit && (c === delim || c === NEWLINE || c === CR)) {
-            if (exact && exponent === 0) value = mantissa;
-            else if (exact && exponent < 0 && exponent >= -22) value = mantissa / POW10[-exponent]!;
-            else if (exact && exponent > 0 && exponent <= 22) value = mantissa * POW10[exponent]!;
-            else if (exact && mantissa === 0) value = 0;
-            else value = slowNumber(bytes, numberStart, numberEnd);
-            if (negative) value = -value;
-          }
+          pos = i;
+          if (role === 0) v0 = value;
+          else if (role === 1) v1 = value;
+          else if (role === 2) v2 = value;
+          else v3 = value;
         }
-        pos = i;
-        if (role === 0) v0 = value;
-        else if (role === 1) v1 = value;
-        else if (role === 2) v2 = value;
-        else v3 = value;
-      }
-      // Move to the end of this cell.
-      while (pos < end) {
+        // Move to the end of this cell.
         c = bytes[pos]!;
-        if (c === delim || c === NEWLINE) break;
+        while (c !== delim && c !== NEWLINE) c = bytes[++pos]!;
         pos++;
+        if (c === NEWLINE) break;
+        column++;
+        if (column > lastWanted) {
+          // Skip the rest of the line.
+          pos = bytes.indexOf(NEWLINE, pos) + 1;
+          break;
+        }
       }
-      if (pos >= end || c === NEWLINE) {
-        pos++;
-        break;
-      }
-      pos++;
-      column++;
-      if (column > lastWanted) {
-        // Skip the rest of the line.
-        const nl = bytes.indexOf(NEWLINE, pos);
-        pos = nl < 0 ? end : nl + 1;
-        break;
-      }
+      rows++;
+      // NaN fails every comparison: one test catches any missing value.
+      if (v0 === v0 && v1 === v1 && v2 === v2 && v3 === v3) {
+        if (n === capacity) {
+          this.n = n;
+          this.grow(bytes, pos);
+          t = this.t;
+          x = this.x;
+          y = this.y;
+          z = this.z;
+          capacity = t.length;
+        }
+        t[n] = v0 * timeScale;
+        x[n] = v1 * lengthScale;
+        y[n] = v2 * lengthScale;
+        z[n] = v3 * lengthScale;
+        n++;
+      } else dropped++;
     }
-    rows++;
-    // NaN fails every comparison: one test catches any missing value.
-    if (v0 === v0 && v1 === v1 && v2 === v2 && v3 === v3) {
-      t[n] = v0 * timeScale;
-      x[n] = v1 * lengthScale;
-      y[n] = v2 * lengthScale;
-      z[n] = v3 * lengthScale;
-      n++;
-    } else dropped++;
+    this.n = n;
+    this.rows = rows;
+    this.dropped = dropped;
   }
-  return { t: t.subarray(0, n), x: x.subarray(0, n), y: y.subarray(0, n), z: z.subarray(0, n), length: n, rows, droppedRows: dropped, header, delimiter };
+}
+
+function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
+  const out = new Uint8Array(a.length + b.length);
+  out.set(a);
+  out.set(b, a.length);
+  return out;
+}
+
+/** Parse the mapped columns of a whole track CSV held as bytes (UTF-8 or ASCII); see `TrackCsvReader`. */
+export function parseTrackCsv(bytes: Uint8Array, columns: TrackColumns, options: ParseTrackOptions = {}): ParsedTrack {
+  const reader = new TrackCsvReader(columns, { sizeHint: bytes.length, ...options });
+  reader.push(bytes);
+  return reader.finish();
 }

@@ -4,12 +4,12 @@
  */
 import { invalidInput } from '@/domain/errors';
 import { lengthFactor, timeFactor } from '@/domain/metrics/ballistics';
-import { parseTrackCsv } from './csv';
+import { TrackCsvReader, type ParsedTrack } from './csv';
 import { hopMetrics, type TrackMetrics } from './hops';
 
 export type { Hop, HopOptions, TrackMetrics, TrackSamples, TrackSummary } from './hops';
 export { hopMetrics } from './hops';
-export { parseTrackCsv, type ParsedTrack, type TrackColumns } from './csv';
+export { TrackCsvReader, parseTrackCsv, type ParsedTrack, type TrackColumns } from './csv';
 
 export interface TrackMetricsOptions {
   /** Column names in the CSV header. */
@@ -31,8 +31,7 @@ export interface TrackMetricsOptions {
   gravityTolerance?: number;
 }
 
-/** Per-hop metrics from a track CSV held as bytes (the fast path for long files). */
-export function trackMetricsFromBytes(bytes: Uint8Array, options: TrackMetricsOptions): TrackMetrics {
+function checkedScales(options: TrackMetricsOptions): { lengthScale: number; timeScale: number } {
   const lengthScale = lengthFactor(options.lengthUnit, 'lengthUnit');
   const timeScale = timeFactor(options.timeUnit, 'timeUnit');
   if (options.massGrams !== undefined && !(Number.isFinite(options.massGrams) && options.massGrams > 0)) {
@@ -41,7 +40,10 @@ export function trackMetricsFromBytes(bytes: Uint8Array, options: TrackMetricsOp
   if (options.energyJoules !== undefined && !(Number.isFinite(options.energyJoules) && options.energyJoules >= 0)) {
     throw invalidInput('energyJoules', 'energyJoules must be a number ≥ 0 (joules)');
   }
-  const parsed = parseTrackCsv(bytes, options, { timeScale, lengthScale });
+  return { lengthScale, timeScale };
+}
+
+function metricsOfParsed(parsed: ParsedTrack, options: TrackMetricsOptions, lengthScale: number): TrackMetrics {
   const result = hopMetrics(parsed, {
     massKg: options.massGrams !== undefined ? options.massGrams / 1000 : undefined,
     energyJ: options.energyJoules,
@@ -54,6 +56,22 @@ export function trackMetricsFromBytes(bytes: Uint8Array, options: TrackMetricsOp
     result.warnings.unshift(`${parsed.droppedRows} of ${parsed.rows} rows had a blank or non-numeric cell in a mapped column and were skipped (dropouts)`);
   }
   return result;
+}
+
+/**
+ * Per-hop metrics from a track CSV arriving in chunks (a file read piece by piece, a request stream).
+ * `sizeHint`, the expected total bytes, lets the sample arrays be sized once.
+ */
+export function trackMetricsFromChunks(chunks: Iterable<Uint8Array>, options: TrackMetricsOptions, sizeHint?: number): TrackMetrics {
+  const { lengthScale, timeScale } = checkedScales(options);
+  const reader = new TrackCsvReader(options, { timeScale, lengthScale, sizeHint });
+  for (const chunk of chunks) reader.push(chunk);
+  return metricsOfParsed(reader.finish(), options, lengthScale);
+}
+
+/** Per-hop metrics from a whole track CSV held as bytes. */
+export function trackMetricsFromBytes(bytes: Uint8Array, options: TrackMetricsOptions): TrackMetrics {
+  return trackMetricsFromChunks([bytes], options, bytes.length);
 }
 
 /** Per-hop metrics from a track CSV text; see `TrackMetricsOptions`. */

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { parseTrackCsv } from '@/domain/tracks/csv';
+import { TrackCsvReader, parseTrackCsv } from '@/domain/tracks/csv';
 
 const cols = { time: 't', x: 'x', y: 'y', z: 'z' };
 const bytes = (s: string) => new TextEncoder().encode(s);
@@ -66,4 +66,50 @@ describe('track CSV parser', () => {
       { numRuns: 2000 },
     );
   });
+
+  it('reads the same samples whatever the chunk boundaries', () => {
+    const text = '\uFEFFt;x;y;z\r\n0,5;1;2;3\r\n\r\n1;"2";3;4\n2;;3;4\n3;1e-3;-2;+7,25\n4;5;6;7';
+    const whole = parseTrackCsv(bytes(text), cols);
+    expect(whole.length).toBe(4);
+    fc.assert(
+      fc.property(fc.uniqueArray(fc.integer({ min: 1, max: bytes(text).length - 1 }), { maxLength: 6 }), (cuts) => {
+        const all = bytes(text);
+        const points = [0, ...cuts.sort((a, b) => a - b), all.length];
+        const reader = new TrackCsvReader(cols);
+        for (let k = 0; k + 1 < points.length; k++) reader.push(all.subarray(points[k], points[k + 1]));
+        const r = reader.finish();
+        expect(Array.from(r.t)).toEqual(Array.from(whole.t));
+        expect(Array.from(r.x)).toEqual(Array.from(whole.x));
+        expect(Array.from(r.z)).toEqual(Array.from(whole.z));
+        expect(r.droppedRows).toBe(whole.droppedRows);
+      }),
+      { numRuns: 300 },
+    );
+  });
+
+  it('copies an unfinished line, so the caller may reuse its chunk buffer', () => {
+    const all = bytes('t,x,y,z\n' + Array.from({ length: 40 }, (_, k) => `${k},1.5,2.5,${k}.25`).join('\n') + '\n');
+    const reused = Buffer.alloc(7);
+    const reader = new TrackCsvReader(cols);
+    for (let at = 0; at < all.length; at += reused.length) {
+      const piece = all.subarray(at, at + reused.length);
+      reused.set(piece);
+      reader.push(reused.subarray(0, piece.length));
+      reused.fill(57); // scribble over the buffer as the next read would
+    }
+    const r = reader.finish();
+    expect(r.length).toBe(40);
+    expect(r.droppedRows).toBe(0);
+    expect(Array.from(r.z).slice(0, 3)).toEqual([0.25, 1.25, 2.25]);
+  });
+
+  it('grows its arrays past the first estimate', () => {
+    const reader = new TrackCsvReader(cols);
+    reader.push(bytes('t,x,y,z\n'));
+    for (let k = 0; k < 50; k++) reader.push(bytes(`${k},0,0,${k / 10}\n`));
+    const r = reader.finish();
+    expect(r.length).toBe(50);
+    expect(r.z[49]).toBeCloseTo(4.9, 12);
+  });
 });
+
