@@ -68,7 +68,8 @@ describe('the trial loop on a tablet', () => {
     await page.getByLabel('Factor 1 low').fill('0');
     await page.getByLabel('Factor 1 high').fill('1.8');
     await page.getByRole('button', { name: 'Create campaign' }).click();
-    await page.waitForURL(/\/campaigns\/[^/]+$/);
+    await page.waitForURL(/\/campaigns\/(?!new$)[^/]+$/);
+    await page.getByRole('heading', { level: 1, name: /Bench check/ }).waitFor();
     campaignUrl = page.url();
     expect(await page.locator('h1').innerText()).toContain('Bench check of the test hopper');
     expect(await campaignCount()).toBe(1);
@@ -102,7 +103,7 @@ describe('the trial loop on a tablet', () => {
     await page.getByRole('link', { name: 'open rig log' }).first().click();
     await page.waitForURL(/\/rigs\//);
     expect(await page.getByRole('note', { name: 'Safety cautions' }).innerText()).toMatch(/high voltage/i);
-    const startButtons = page.getByRole('button', { name: 'Start trial' });
+    const startButtons = page.getByRole('button', { name: /^Start run \d+/ });
     const box = await startButtons.first().boundingBox();
     expect(box!.height).toBeGreaterThanOrEqual(44);
 
@@ -116,7 +117,7 @@ describe('the trial loop on a tablet', () => {
     const apex = [182, 231, 160, 214, 199, 247, 175];
     for (let i = 0; i < apex.length; i++) {
       if (i > 0) {
-        await page.getByRole('button', { name: 'Start trial' }).first().click();
+        await page.getByRole('button', { name: /^Start run \d+/ }).first().click();
       }
       await page.getByLabel(/apex_height/).fill(String(apex[i]));
       await page.getByRole('button', { name: 'Finish trial' }).click();

@@ -52,6 +52,7 @@ export default async function CampaignPage({ params }: { params: Promise<{ id: s
       <div className="grid2">
         <section className="panel">
           <h2 style={{ marginTop: 0 }}>Factors</h2>
+          <div className="table-wrap">
           <table className="data">
             <thead>
               <tr>
@@ -72,6 +73,7 @@ export default async function CampaignPage({ params }: { params: Promise<{ id: s
               ))}
             </tbody>
           </table>
+          </div>
         </section>
         <section className="panel">
           <h2 style={{ marginTop: 0 }}>Responses, robots, rigs</h2>
