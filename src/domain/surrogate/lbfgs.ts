@@ -161,7 +161,14 @@ export function minimizeBounded(f: ObjectiveWithGradient, start: ArrayLike<numbe
         accepted = true;
         break;
       }
-      t *= 0.5;
+      // Minimiser of the quadratic through f(x), the slope along the step and f(x(t)), kept within [0.1 t, 0.5 t].
+      if (Number.isFinite(next.value) && decrease < 0) {
+        const curvature = next.value - value - decrease;
+        const ratio = curvature > 0 ? -decrease / (2 * curvature) : 0.5;
+        t *= Math.min(0.5, Math.max(0.1, ratio));
+      } else {
+        t *= 0.5;
+      }
     }
     if (!accepted) break;
     const s = new Float64Array(n);

@@ -611,7 +611,7 @@ export function fitSurrogate(request: SuggestionRequest, data: PreparedData = pr
     kernel: request.kernel ?? 'matern52',
     categorical: request.factors.map((f) => f.kind === 'categorical'),
     seed: request.seed ?? 1,
-    starts: data.inputs.length > 300 ? 2 : 3,
+    starts: data.inputs.length > 100 ? 2 : 3,
   });
   model.factors = request.factors.slice();
   return model;
