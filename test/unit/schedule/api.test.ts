@@ -61,4 +61,24 @@ describe('POST /api/v1/schedules', () => {
     expect(res.assignments[1]).toMatchObject({ runId: 'r2', start: '2026-03-02T09:30:00.000Z' });
     expect(() => handleScheduleRequest({ ...body, events: [{ kind: 'rig_down', rig: 'A' }] })).toThrow(expect.objectContaining({ field: 'events[0].start' }));
   });
+
+  it('turns rig calendars into hours over the horizon', () => {
+    const res = handleScheduleRequest({
+      runs: [
+        { id: 'r1', values: { surface: 'ice' }, durationMinutes: 40 },
+        { id: 'r2', values: { surface: 'ice' }, durationMinutes: 40 },
+      ],
+      rigs: [{ name: 'A', calendar: { workdays: [1, 2, 3, 4, 5], startTime: '08:00', endTime: '09:00', timeZone: 'America/New_York' } }],
+      horizon: { from: '2026-03-06', days: 4 },
+      changeoverMinutes: { surface: 40 },
+    });
+    // Friday 6 March 08:00 EST is 13:00Z; Monday 9 March 08:00 EDT is 12:00Z.
+    expect(res.assignments.map((a) => a.start)).toEqual(['2026-03-06T13:00:00.000Z', '2026-03-09T12:00:00.000Z']);
+    expect(() => handleScheduleRequest({ runs: [], rigs: [{ name: 'A', calendar: { workdays: [1], startTime: '08:00', endTime: '09:00', timeZone: 'UTC' } }] })).toThrow(
+      expect.objectContaining({ field: 'horizon' }),
+    );
+    expect(() =>
+      handleScheduleRequest({ runs: [], horizon: { from: '2026-03-02', days: 1 }, rigs: [{ name: 'A', calendar: { workdays: [1], startTime: '08:00', endTime: '09:00', timeZone: 'Atlantis/Lost' } }] }),
+    ).toThrow(expect.objectContaining({ field: 'rigs[0].calendar.timeZone' }));
+  });
 });

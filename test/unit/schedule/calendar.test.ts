@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { workingAvailability, wallTimeToUtc, zoneOffsetMs } from '@/domain/schedule';
+import fc from 'fast-check';
+import { clockInZone, dayInZone, isoWeekday, workingAvailability, wallTimeToUtc, zoneOffsetMs } from '@/domain/schedule';
 import { DomainError } from '@/domain/errors';
 
 // Daylight-saving dates used below, from the rules in force (from memory): the EU changes on the last
@@ -84,5 +85,40 @@ describe('workingAvailability', () => {
       expect.objectContaining({ field: 'calendar.startTime' }),
     );
     expect(() => workingAvailability({ workdays: [1], startTime: '08:00', endTime: '16:00', timeZone: 'UTC' }, '2026-02-30', 1)).toThrow(/real calendar day/);
+  });
+});
+
+describe('workingAvailability (property)', () => {
+  it('every interval starts and ends at the local clock times, on a working day, in any zone and season', () => {
+    const zones = ['Europe/Berlin', 'America/New_York', 'Australia/Sydney', 'Asia/Kolkata', 'America/Santiago', 'UTC'];
+    fc.assert(
+      fc.property(
+        fc.constantFrom(...zones),
+        fc.integer({ min: 0, max: 364 }),
+        fc.integer({ min: 4, max: 11 }),
+        fc.integer({ min: 1, max: 10 }),
+        fc.subarray([1, 2, 3, 4, 5, 6, 7], { minLength: 1 }),
+        (timeZone, dayOfYear, startHour, hours, workdays) => {
+          const from = new Date(Date.UTC(2026, 0, 1 + dayOfYear)).toISOString().slice(0, 10);
+          const startTime = `${String(startHour).padStart(2, '0')}:30`;
+          const endTime = `${String(startHour + hours).padStart(2, '0')}:30`;
+          const intervals = workingAvailability({ workdays, startTime, endTime, timeZone }, from, 14);
+          for (const iv of intervals) {
+            const s = Date.parse(iv.start);
+            const e = Date.parse(iv.end);
+            // None of these zones changes its clock between 04:00 and 22:00 local time (from memory).
+            expect(clockInZone(s, timeZone)).toBe(startTime);
+            expect(clockInZone(e, timeZone)).toBe(endTime);
+            expect(e - s).toBe(hours * 3_600_000);
+            expect(workdays).toContain(isoWeekday(dayInZone(s, timeZone)));
+          }
+          const expected = Array.from({ length: 14 }, (_, k) => new Date(Date.UTC(2026, 0, 1 + dayOfYear + k)).toISOString().slice(0, 10)).filter((d) =>
+            workdays.includes(isoWeekday(d)),
+          ).length;
+          expect(intervals).toHaveLength(expected);
+        },
+      ),
+      { numRuns: 150, seed: 31 },
+    );
   });
 });
