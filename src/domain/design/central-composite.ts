@@ -2,6 +2,7 @@
 // Box & Wilson (1951), J. R. Statist. Soc. B 13:1-45 (central composite design)
 import { DomainError, invalidInput } from '../errors';
 import type { Factor } from '../factors';
+import { chooseFraction, fractionRuns } from './fractional-factorial';
 import { centreRuns } from './full-factorial';
 import { standardOrder } from './levels';
 import type { AxialDistance, CodedRun } from './types';
@@ -20,10 +21,21 @@ export function orthogonalAlpha(cubeRuns: number, factorCount: number, centreCou
   return Math.pow((f * (Math.sqrt(f + t) - Math.sqrt(f)) ** 2) / 4, 0.25);
 }
 
+/** α for orthogonal blocking into a cube block and an axial block: √(F (2k + n0a) / (2 (F + n0c))). */
+// Box & Hunter (1957), Ann. Math. Statist. 28:195-241 (orthogonal blocking of composite designs)
+export function orthogonalBlockingAlpha(cubeRuns: number, factorCount: number, cubeCentres: number, axialCentres: number): number {
+  return Math.sqrt((cubeRuns * (2 * factorCount + axialCentres)) / (2 * (cubeRuns + cubeCentres)));
+}
+
 export interface CentralCompositeOptions {
   alpha?: AxialDistance;
+  /** Centre runs; with two blocks, centre runs in each block. */
   centerPoints?: number;
   replicates?: number;
+  /** Resolution of the cube fraction (default: full cube up to 4 factors, else the smallest resolution V fraction). */
+  resolution?: number;
+  /** 1 (default) or 2: the cube and the axial runs as two orthogonal blocks. */
+  blocks?: number;
 }
 
 export interface CentralCompositeDesign {
@@ -52,26 +64,41 @@ export function centralCompositeDesign(factors: readonly Factor[], options: Cent
   const replicates = options.replicates ?? 1;
   if (!Number.isInteger(n0) || n0 < 0) throw invalidInput('centerPoints', 'centerPoints must be a whole number of at least 0');
   if (!Number.isInteger(replicates) || replicates < 1) throw invalidInput('replicates', 'replicates must be a whole number of at least 1');
-  const cube = standardOrder(factors.map(() => [-1, 1]));
+  const blocks = options.blocks ?? 1;
+  if (blocks !== 1 && blocks !== 2) throw invalidInput('blocks', 'a central composite design here has 1 block, or 2 (cube and axial runs)');
+  const resolution = options.resolution ?? (k <= 4 ? k + 1 : 5);
+  if (!Number.isInteger(resolution) || (resolution <= k && resolution < 5)) {
+    throw invalidInput('resolution', 'the cube of a central composite design needs resolution V or more to estimate the two-factor interactions');
+  }
+  const cube = resolution > k ? standardOrder(factors.map(() => [-1, 1])) : fractionRuns(k, chooseFraction(k, resolution));
   const f = cube.length;
-  const choice = options.alpha ?? 'face-centred';
+  const choice = options.alpha ?? (blocks === 2 ? 'orthogonal' : 'face-centred');
   let alpha: number;
-  if (choice === 'face-centred') alpha = 1;
+  if (blocks === 2 && choice === 'orthogonal') alpha = orthogonalBlockingAlpha(f, k, n0, n0);
+  else if (choice === 'face-centred') alpha = 1;
   else if (choice === 'rotatable') alpha = rotatableAlpha(f);
   else if (choice === 'orthogonal') alpha = orthogonalAlpha(f, k, n0);
   else if (typeof choice === 'number' && Number.isFinite(choice) && choice > 0) alpha = choice;
   else throw invalidInput('alpha', 'alpha must be "rotatable", "orthogonal", "face-centred" or a positive number');
   const runs: CodedRun[] = [];
+  const cubeBlock = blocks === 2 ? 1 : undefined;
+  const axialBlock = blocks === 2 ? 2 : undefined;
+  const tag = (run: CodedRun, block: number | undefined): CodedRun => (block === undefined ? run : { ...run, block });
   for (let r = 0; r < replicates; r++) {
-    for (const row of cube) runs.push({ coded: row.slice() });
+    for (const row of cube) runs.push(tag({ coded: row.slice() }, cubeBlock));
     for (let j = 0; j < k; j++) {
       for (const sign of [-1, 1]) {
         const coded = new Array<number>(k).fill(0);
         coded[j] = sign * alpha;
-        runs.push({ coded });
+        runs.push(tag({ coded }, axialBlock));
       }
     }
   }
-  runs.push(...centreRuns(factors, n0));
+  if (blocks === 2) {
+    runs.push(...centreRuns(factors, n0).map((c) => tag(c, cubeBlock)));
+    runs.push(...centreRuns(factors, n0).map((c) => tag(c, axialBlock)));
+  } else {
+    runs.push(...centreRuns(factors, n0));
+  }
   return { runs, alpha, cubeRuns: f };
 }

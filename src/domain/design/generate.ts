@@ -12,6 +12,7 @@ import {
   type StandardModel,
 } from '../factors';
 import { seededRandom } from '../random';
+import { boxBehnkenDesign } from './box-behnken';
 import { centralCompositeDesign } from './central-composite';
 import { designDiagnostics } from './diagnostics';
 import { fullFactorialDesign } from './full-factorial';
@@ -183,7 +184,13 @@ function construct(
       return withCentres(factors, replicate(rows, spec.replicates), spec.centerPoints);
     }
     case 'central-composite': {
-      const d = centralCompositeDesign(factors, { alpha: spec.alpha, centerPoints: spec.centerPoints, replicates: spec.replicates });
+      const d = centralCompositeDesign(factors, {
+        alpha: spec.alpha,
+        centerPoints: spec.centerPoints,
+        replicates: spec.replicates,
+        resolution: spec.resolution,
+        blocks: spec.blocks,
+      });
       extras.axialDistance = d.alpha;
       if (d.alpha > 1 + 1e-12) {
         notes.push(`axial runs sit at ±${d.alpha.toFixed(4)} in coded units, beyond the factor ranges; check the rig can reach them`);
@@ -192,6 +199,8 @@ function construct(
       }
       return d.runs;
     }
+    case 'box-behnken':
+      return boxBehnkenDesign(factors, { centerPoints: spec.centerPoints, replicates: spec.replicates });
     default:
       throw new DomainError('unsupported', `method "${spec.method}" is not available yet`, 'method');
   }
