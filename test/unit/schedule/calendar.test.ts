@@ -118,7 +118,7 @@ describe('workingAvailability (property)', () => {
           expect(intervals).toHaveLength(expected);
         },
       ),
-      { numRuns: 150, seed: 31 },
+      { numRuns: 100, seed: 31 },
     );
   });
 });

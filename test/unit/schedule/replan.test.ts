@@ -79,7 +79,7 @@ describe('replan', () => {
         expect(res.changeovers).toBeGreaterThanOrEqual(res.lowerBound.changeovers);
         expect(res.makespanMinutes).toBeGreaterThanOrEqual(res.lowerBound.makespanMinutes - 1e-6);
       }),
-      { numRuns: 80, seed: 1999 },
+      { numRuns: 60, seed: 1999 },
     );
   });
 });

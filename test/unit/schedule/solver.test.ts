@@ -70,7 +70,7 @@ describe('grouped solver', () => {
         expect([res.unscheduled.length, res.changeovers, finish]).toEqual(best);
         expect(scheduleViolations(req, res)).toEqual([]);
       }),
-      { numRuns: 120, seed: 424242 },
+      { numRuns: 80, seed: 424242 },
     );
   });
 
@@ -86,7 +86,7 @@ describe('grouped solver', () => {
         expect(res.unscheduled.length).toBeLessThanOrEqual(seq.unscheduled.length);
         if (res.unscheduled.length === seq.unscheduled.length) expect(res.changeovers).toBeLessThanOrEqual(seq.changeovers);
       }),
-      { numRuns: 150, seed: 8675309 },
+      { numRuns: 100, seed: 8675309 },
     );
   });
 
