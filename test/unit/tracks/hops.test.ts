@@ -113,6 +113,28 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
     expect(r.warnings.join(' ')).toMatch(/sorted by time/);
   });
 
+  it('stays within tolerance when the marker dips in stance (leg compression)', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500, noise: 0.0003, stanceDip: 0.002, seed: 7 });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.hops).toHaveLength(3);
+    r.hops.forEach((hop, k) => {
+      const truth = track.truth[k]!;
+      expect(Math.abs(hop.apexHeight - truth.apexHeight)).toBeLessThan(0.003 + 0.02 * truth.apexHeight);
+      expect(Math.abs(hop.takeoffTime - truth.takeoffTime)).toBeLessThan(0.004);
+      expect(Math.abs(hop.landingTime - truth.landingTime)).toBeLessThan(0.004);
+    });
+  });
+
+  it('ignores isolated marker glitches in stance and in flight', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500, noise: 0.0003, spikes: 0.004, seed: 11 });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.hops).toHaveLength(3);
+    r.hops.forEach((hop, k) => {
+      expect(Math.abs(hop.apexHeight - track.truth[k]!.apexHeight)).toBeLessThan(0.003);
+      expect(Math.abs(hop.fittedGravity - 9.80665)).toBeLessThan(0.3);
+    });
+  });
+
   it('reports no hops for a robot that never leaves the ground', () => {
     const track = syntheticTrack({ hops: [], finalStance: 1, noise: 0.0003 });
     const r = trackMetrics(track.csv, mapping);
@@ -128,7 +150,8 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
   });
 
   // Stated tolerances with noise σ ≤ 0.5 mm, 250-1000 Hz sampling with ±30 % jitter and up to 5 % dropped
-  // rows: apex within 3 mm + 2 %, takeoff and landing times within 4 ms, hop length within 5 mm + 3 %.
+  // rows: apex within 1 mm, takeoff and landing times within 1.5 ms, hop length within 1.5 mm (about three
+  // times the worst error seen over 300 such tracks).
   it('recovers apex, length and times within the stated tolerances under noise, uneven sampling and dropouts', () => {
     const hopArb = fc.record({
       apexHeight: fc.double({ min: 0.03, max: 0.3, noNaN: true }),
@@ -150,14 +173,14 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
           expect(r.hops).toHaveLength(hops.length);
           r.hops.forEach((hop, k) => {
             const truth = track.truth[k]!;
-            expect(Math.abs(hop.apexHeight - truth.apexHeight)).toBeLessThan(0.003 + 0.02 * truth.apexHeight);
-            expect(Math.abs(hop.takeoffTime - truth.takeoffTime)).toBeLessThan(0.004);
-            expect(Math.abs(hop.landingTime - truth.landingTime)).toBeLessThan(0.004);
-            expect(Math.abs(hop.hopLength - truth.hopLength)).toBeLessThan(0.005 + 0.03 * truth.hopLength);
+            expect(Math.abs(hop.apexHeight - truth.apexHeight)).toBeLessThan(0.001);
+            expect(Math.abs(hop.takeoffTime - truth.takeoffTime)).toBeLessThan(0.0015);
+            expect(Math.abs(hop.landingTime - truth.landingTime)).toBeLessThan(0.0015);
+            expect(Math.abs(hop.hopLength - truth.hopLength)).toBeLessThan(0.0015);
           });
         },
       ),
-      { numRuns: 60 },
+      { numRuns: 60, seed: 20260303 },
     );
   });
 });

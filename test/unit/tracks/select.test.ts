@@ -15,7 +15,7 @@ describe('median by selection (Hoare 1961)', () => {
         expect(medianOfRange(values, from, to)).toBe(expected);
         expect(Array.from(values)).toEqual(xs);
       }),
-      { numRuns: 500 },
+      { numRuns: 500, seed: 20260304 },
     );
   });
   it('handles ties and an empty range', () => {

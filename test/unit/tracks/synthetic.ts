@@ -29,6 +29,10 @@ export interface SyntheticOptions {
   lengthScale?: number;
   timeScale?: number;
   start?: { x: number; y: number; t: number };
+  /** Depth of a half-sine dip of the marker during each stance (leg compression), m. */
+  stanceDip?: number;
+  /** Probability that a sample is a marker glitch: height off by +5 cm. */
+  spikes?: number;
 }
 
 export interface TrueHop {
@@ -99,6 +103,8 @@ export function syntheticTrack(o: SyntheticOptions): SyntheticTrack {
     let px = piece.x0 + piece.vx * tau;
     let py = piece.y0 + piece.vy * tau;
     let pz = ground + (piece.flight ? piece.vz * tau - 0.5 * g * tau * tau : 0);
+    if (!piece.flight && o.stanceDip) pz -= o.stanceDip * Math.sin((Math.PI * tau) / (piece.t1 - piece.t0));
+    if (o.spikes && rng.next() < o.spikes) pz += 0.05;
     if (noise > 0) {
       px += noise * randomNormal(rng);
       py += noise * randomNormal(rng);
