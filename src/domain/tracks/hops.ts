@@ -228,7 +228,6 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
     flights.push({ segment, fit });
   }
   if (tooShort > 0) warnings.push(`${tooShort} short excursions above the ground had fewer than ${MIN_FIT_SAMPLES} samples in flight and were not counted as hops`);
-  if (notBallistic.length > 0) warnings.push(`phases at ${listed(notBallistic)} do not curve downwards and are not ballistic arcs; they were not counted as hops`);
 
   // Ground level of the stance before each flight and after the last.
   const stanceGround = (from: number, to: number): number => (to - from >= 3 ? medianOfRange(s.z, from, to) : ground);
@@ -283,6 +282,7 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
       fitSamples: fit.samples,
     });
   }
+  if (notBallistic.length > 0) warnings.push(`phases at ${listed(notBallistic)} are not ballistic arcs (they do not curve downwards, or do not reach the stance level); they were not counted as hops`);
   if (edgeCut.length > 0) warnings.push(`flights at ${listed(edgeCut)} are cut by the start or end of the track; they were not counted as hops`);
   if (gravityOff.length > 0) {
     warnings.push(`the fitted gravity differs from 9.80665 m/s² by more than ${Math.round(tolerance * 100)} % for ${listed(gravityOff)}; check the units, the marker, or non-ballistic forces (wings, tether)`);

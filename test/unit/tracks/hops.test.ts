@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { trackMetrics } from '@/domain/tracks';
+import { hopMetrics, trackMetrics } from '@/domain/tracks';
 import { flightTimeForApex, takeoffSpeedForApex } from '@/domain/metrics/ballistics';
 import { syntheticTrack, type SyntheticHop } from './synthetic';
 
@@ -133,6 +133,17 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
       expect(Math.abs(hop.apexHeight - track.truth[k]!.apexHeight)).toBeLessThan(0.003);
       expect(Math.abs(hop.fittedGravity - 9.80665)).toBeLessThan(0.3);
     });
+  });
+
+  it('does not count a phase that curves upwards (the robot lifted by hand) as a hop', () => {
+    const n = 600;
+    const t = Float64Array.from({ length: n }, (_, i) => i / 200);
+    // Ground at 0.01 m; between 1 s and 2 s the height follows an upward-curving bowl 5-10 cm up.
+    const z = Float64Array.from(t, (s) => (s > 1 && s < 2 ? 0.06 + 0.2 * (s - 1.5) ** 2 : 0.01));
+    const zeros = new Float64Array(n);
+    const r = hopMetrics({ t, x: zeros, y: zeros, z });
+    expect(r.hops).toEqual([]);
+    expect(r.warnings.join(' ')).toMatch(/not ballistic arcs/);
   });
 
   it('reports no hops for a robot that never leaves the ground', () => {
