@@ -13,6 +13,7 @@ import {
 } from '../factors';
 import { seededRandom } from '../random';
 import { boxBehnkenDesign } from './box-behnken';
+import { definitiveScreeningDesign } from './definitive-screening';
 import { centralCompositeDesign } from './central-composite';
 import { designDiagnostics } from './diagnostics';
 import { fullFactorialDesign } from './full-factorial';
@@ -49,7 +50,6 @@ export function defaultModel(method: DesignSpec['method']): StandardModel {
   switch (method) {
     case 'central-composite':
     case 'box-behnken':
-    case 'definitive-screening':
       return 'quadratic';
     case 'full-factorial':
       return 'interactions';
@@ -199,6 +199,8 @@ function construct(
       }
       return d.runs;
     }
+    case 'definitive-screening':
+      return withCentres(factors, replicate(definitiveScreeningDesign(factors, { runs: spec.runs }), spec.replicates), spec.centerPoints);
     case 'box-behnken':
       return boxBehnkenDesign(factors, { centerPoints: spec.centerPoints, replicates: spec.replicates });
     default:

@@ -16,3 +16,4 @@ export { codedRegion, momentMatrix, columnFactorParts, randomFeasiblePoint, type
 export { fastModel, type FastModel } from './model-rows';
 export { noncentralFCdf, fTestPower } from './power';
 export { varianceInflation, columnCorrelations, fractionOfDesignSpace, termPower, FDS_FRACTIONS, type DiagnosticsOptions } from './diagnostics';
+export * from './definitive-screening';
