@@ -1,0 +1,6 @@
+import { route } from '@/server/api/http';
+import { storeTrackHandler } from '@/server/api/rig-handlers';
+
+export const runtime = 'nodejs';
+export const dynamic = 'force-dynamic';
+export const POST = route(storeTrackHandler);

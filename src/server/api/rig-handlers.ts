@@ -1,0 +1,48 @@
+/**
+ * Route handlers of the rig page: the combined idempotent log entry, one trial, a trial's motion
+ * track, and the import of past trials. Parse, call the repository, answer.
+ */
+import { DomainError } from '@/domain/errors';
+import { trialImportSchema, trialLogSchema } from '@/server/api/schemas/rig';
+import { importTrials } from '@/server/repos/imports';
+import { getTrial, logTrial } from '@/server/repos/rig-log';
+import { storeTrack, type TrackUpload } from '@/server/repos/tracks';
+import { jsonResponse, readJson, readText } from './http';
+import { trackQuerySchema } from './tracks';
+import { parseWith } from './validation';
+
+const KEY = /^[A-Za-z0-9_.:-]{8,100}$/;
+
+/** Largest track stored with a trial, bytes. */
+export const MAX_TRIAL_TRACK_BYTES = 16 * 1024 * 1024;
+/** Largest past-trials import, bytes of JSON. */
+export const MAX_IMPORT_BYTES = 8 * 1024 * 1024;
+
+export const logTrialHandler = async (req: Request, p: Record<string, string>) => {
+  const key = req.headers.get('idempotency-key');
+  if (key === null || !KEY.test(key)) {
+    throw new DomainError('invalid_input', 'send an Idempotency-Key header of 8–100 letters, digits or . _ : - (one per log entry)', 'Idempotency-Key');
+  }
+  const input = parseWith(trialLogSchema, await readJson(req));
+  const result = await logTrial(p.id!, input, key);
+  return jsonResponse(result, result.replayed ? 200 : 201);
+};
+
+export const getTrialHandler = async (_req: Request, p: Record<string, string>) => ({ trial: await getTrial(p.id!, p.trialId!) });
+
+export const storeTrackHandler = async (req: Request, p: Record<string, string>) => {
+  const csv = await readText(req, MAX_TRIAL_TRACK_BYTES);
+  const params = new URL(req.url).searchParams;
+  const raw: Record<string, string> = {};
+  for (const [k, v] of params) if (k !== 'fileName') raw[k] = v;
+  const q = parseWith(trackQuerySchema, raw);
+  const upload = Object.fromEntries(Object.entries(q).filter(([, v]) => v !== undefined)) as unknown as TrackUpload;
+  upload.fileName = (params.get('fileName') ?? '').slice(0, 200);
+  return jsonResponse(await storeTrack(p.id!, p.trialId!, csv, upload), 201);
+};
+
+export const importTrialsHandler = async (req: Request, p: Record<string, string>) => {
+  const input = parseWith(trialImportSchema, await readJson(req, MAX_IMPORT_BYTES));
+  const result = await importTrials(p.id!, input);
+  return jsonResponse(result, input.dryRun ? 200 : 201);
+};

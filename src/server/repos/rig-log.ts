@@ -1,0 +1,210 @@
+/**
+ * The rig tablet's combined log entry: start and finish of one trial sent as ONE idempotent request,
+ * so that a queue kept offline can be replayed with no server round-trip in between. The readings are
+ * checked before anything is stored (a refused entry stores nothing); a replay with the same key
+ * returns the stored trial and stores nothing new; a replay that finds the stored trial changed since,
+ * or a run already logged from another tablet, answers 409 with both versions, never overwriting.
+ */
+import { DomainError, invalidInput } from '@/domain/errors';
+import { checkReadings } from '@/domain/metrics/plausibility';
+import type { z } from 'zod';
+import type { trialLogSchema } from '@/server/api/schemas/rig';
+import { db } from '@/server/db/client';
+import { getCampaign } from './campaigns';
+import { finishTrial, standardReadings, startTrial } from './trials';
+
+export type TrialLogInput = z.output<typeof trialLogSchema>;
+
+/** What the operator entered, in the shape both sides of a conflict are shown in. */
+export interface LoggedValues {
+  runId: string;
+  status: string;
+  passed: boolean | null;
+  failureReason: string;
+  notes: string;
+  observations: Record<string, number>;
+}
+
+/** Version a trial has right after a combined log: 1 at start, +1 at finish. */
+const VERSION_AFTER_LOG = 2;
+
+function sentValues(input: TrialLogInput): LoggedValues {
+  const passed = input.status === 'failed' ? false : input.passed ?? (input.status === 'done' ? true : null);
+  return { runId: input.runId, status: input.status, passed, failureReason: input.failureReason, notes: input.notes, observations: { ...input.observations } };
+}
+
+type StoredTrial = {
+  id: string;
+  runId: string;
+  status: string;
+  passed: boolean | null;
+  failureReason: string;
+  notes: string;
+  version: number;
+  idempotencyKey: string | null;
+  observations: { name: string; value: number }[];
+  amendments: { field: string; oldValue: string; newValue: string; reason: string }[];
+};
+
+function storedValues(t: StoredTrial): LoggedValues {
+  return {
+    runId: t.runId,
+    status: t.status,
+    passed: t.passed,
+    failureReason: t.failureReason,
+    notes: t.notes,
+    observations: Object.fromEntries(t.observations.map((o) => [o.name, o.value])),
+  };
+}
+
+function sameValues(a: LoggedValues, b: LoggedValues): boolean {
+  const ka = Object.keys(a.observations).sort();
+  const kb = Object.keys(b.observations).sort();
+  if (ka.join('\u0000') !== kb.join('\u0000')) return false;
+  if (ka.some((k) => a.observations[k] !== b.observations[k])) return false;
+  return a.runId === b.runId && a.status === b.status && a.passed === b.passed && a.failureReason === b.failureReason && a.notes === b.notes;
+}
+
+/** Refuse what finishTrial would refuse, before the start is stored. */
+async function precheck(campaignId: string, input: TrialLogInput, now: Date) {
+  const campaign = await getCampaign(campaignId);
+  for (const name of Object.keys(input.observations)) {
+    if (!campaign.responses.some((r) => r.name === name)) {
+      throw invalidInput(`observations.${name}`, `"${name}" is not a response of this campaign; known: ${campaign.responses.map((r) => r.name).join(', ')}`);
+    }
+  }
+  const robot = input.robotId ? campaign.robots.find((r) => r.id === input.robotId) : undefined;
+  if (input.robotId && !robot) throw invalidInput('robotId', 'no such robot in this campaign; choose one from the list');
+  if (input.rigId && !campaign.rigs.some((r) => r.id === input.rigId)) throw invalidInput('rigId', 'no such rig in this campaign');
+  const startedAt = input.startedAt ?? now.toISOString();
+  const finishedAt = input.finishedAt ?? now.toISOString();
+  if (Date.parse(finishedAt) < Date.parse(startedAt)) throw invalidInput('finishedAt', 'the finish time is before the start time; check the tablet clock');
+  const passed = input.status === 'failed' ? false : input.passed ?? (input.status === 'done' ? true : undefined);
+  const { readings, fieldOf } = standardReadings(campaign.responses, input.observations);
+  const check = checkReadings(
+    { ...readings, passed, failureReason: input.failureReason || null, startedAt, finishedAt },
+    { now: now.toISOString(), robotMassKg: robot ? robot.massGrams / 1000 : null, robotHeightM: robot?.heightMm ? robot.heightMm / 1000 : null },
+  );
+  if (check.errors.length) {
+    const first = check.errors[0]!;
+    const field = fieldOf[first.field] ? `observations.${fieldOf[first.field]}` : first.field;
+    throw invalidInput(field, first.message, { errors: check.errors, warnings: check.warnings });
+  }
+}
+
+async function findByKey(key: string): Promise<StoredTrial | null> {
+  const client = await db();
+  // Read inside a transaction so that a finish being written by a concurrent replay is seen whole.
+  return client.$transaction((tx) =>
+    tx.trial.findUnique({
+      where: { idempotencyKey: key },
+      include: { observations: { select: { name: true, value: true } }, amendments: { select: { field: true, oldValue: true, newValue: true, reason: true }, orderBy: { createdAt: 'asc' } } },
+    }),
+  );
+}
+
+/** Finish a started trial; when a concurrent replay of the same key finished it first, answer as a replay. */
+async function finishOrReplay(campaignId: string, key: string, trialId: string, version: number, input: TrialLogInput, actor: string, now: Date) {
+  try {
+    const { trial, warnings } = await finishTrial(campaignId, trialId, { ...finishPart(input), version }, actor, now);
+    return { trial, warnings, replayed: false };
+  } catch (e) {
+    if (e instanceof DomainError && e.code === 'conflict') {
+      const again = await findByKey(key);
+      if (again && again.status !== 'running') return replay(campaignId, key, again, input, actor, now);
+    }
+    throw e;
+  }
+}
+
+/** Answer a replay of a key that is already stored. */
+async function replay(
+  campaignId: string, key: string, stored: StoredTrial, input: TrialLogInput, actor: string, now: Date,
+): Promise<{ trial: Awaited<ReturnType<typeof finishTrial>>['trial']; warnings: { field: string; message: string }[]; replayed: boolean }> {
+  if (stored.status === 'running') {
+    // The start is stored but its finish is not (yet): finish it now, or find it finished by a concurrent copy.
+    return finishOrReplay(campaignId, key, stored.id, stored.version, input, actor, now);
+  }
+  const mine = sentValues(input);
+  const theirs = storedValues(stored);
+  if (stored.version !== VERSION_AFTER_LOG || stored.amendments.length > 0 || !sameValues(mine, theirs)) {
+    throw new DomainError('conflict', 'this entry was stored before and has been changed since; compare both versions and correct with an amendment if needed', 'Idempotency-Key', {
+      trialId: stored.id,
+      currentVersion: stored.version,
+      stored: theirs,
+      sent: mine,
+      amendments: stored.amendments,
+    });
+  }
+  const client = await db();
+  const trial = await client.trial.findUniqueOrThrow({ where: { id: stored.id }, include: { observations: true } });
+  return { trial, warnings: [] as { field: string; message: string }[], replayed: true };
+}
+
+function finishPart(input: TrialLogInput) {
+  return {
+    observations: input.observations,
+    passed: input.passed,
+    failureReason: input.failureReason,
+    notes: input.notes,
+    finishedAt: input.finishedAt,
+    status: input.status,
+  };
+}
+
+/**
+ * Start and finish one trial in one idempotent step. Answers the stored trial, the plausibility
+ * warnings and whether this was a replay of an entry stored before.
+ */
+export async function logTrial(campaignId: string, input: TrialLogInput, key: string, actor = 'local', now = new Date()) {
+  const stored = await findByKey(key);
+  if (stored) return replay(campaignId, key, stored, input, actor, now);
+  await precheck(campaignId, input, now);
+  const client = await db();
+  if (!input.repeat) {
+    // Another device logged this run already: show both, never store a silent duplicate.
+    const earlier = await client.trial.findFirst({
+      where: { campaignId, runId: input.runId, status: { in: ['done', 'failed'] } },
+      orderBy: { startedAt: 'desc' },
+      include: { observations: { select: { name: true, value: true } }, amendments: { select: { field: true, oldValue: true, newValue: true, reason: true } } },
+    });
+    if (earlier) {
+      throw new DomainError('conflict', 'this run was already logged on another device; compare both versions, then keep theirs or store yours as a repeat trial', 'runId', {
+        trialId: earlier.id,
+        currentVersion: earlier.version,
+        stored: storedValues(earlier),
+        sent: sentValues(input),
+        amendments: earlier.amendments,
+      });
+    }
+  }
+  const started = await startTrial(
+    campaignId,
+    { runId: input.runId, rigId: input.rigId, robotId: input.robotId, operator: input.operator, startedAt: input.startedAt },
+    key,
+    actor,
+    now,
+  );
+  if (started.replayed) {
+    // A second copy of this request raced the first; answer like a replay.
+    const again = await findByKey(key);
+    if (again) return replay(campaignId, key, again, input, actor, now);
+  }
+  return finishOrReplay(campaignId, key, started.trial.id, started.trial.version, input, actor, now);
+}
+
+/** One trial with its readings, amendments and tracks (without the raw track text). */
+export async function getTrial(campaignId: string, trialId: string) {
+  const client = await db();
+  const trial = await client.trial.findFirst({
+    where: { id: trialId, campaignId },
+    include: {
+      observations: true,
+      amendments: { orderBy: { createdAt: 'asc' } },
+      run: true,
+      tracks: { select: { id: true, fileName: true, mappingJson: true, hopsJson: true, createdAt: true }, orderBy: { createdAt: 'asc' } },
+    },
+  });
+  if (!trial) throw new DomainError('not_found', 'no such trial in this campaign', 'trialId');
+  return trial;
+}
