@@ -14,6 +14,16 @@ export interface RefinePick {
   predictionVariance: number;
 }
 
+/** Scaled prediction variance f(x)ᵀ(FᵀF)⁻¹f(x) of each pick, given the observed runs and the picks before it. */
+export function sequentialPredictionVariances(factors: readonly Factor[], observed: readonly ArrayLike<number>[], picks: readonly ArrayLike<number>[]): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < picks.length; i++) {
+    const [first] = refineDesignCandidates(factors, [...observed, ...picks.slice(0, i)].map((p) => Float64Array.from(p)), [Float64Array.from(picks[i]!)], 1);
+    out.push(first!.predictionVariance);
+  }
+  return out;
+}
+
 export function refineDesignCandidates(factors: readonly Factor[], observed: readonly Float64Array[], candidates: readonly Float64Array[], count: number): RefinePick[] {
   const model = compileModel(factors, standardTerms(factors, 'quadratic'));
   const p = model.p;

@@ -11,15 +11,17 @@
  * candidates too, so a replicate is suggested (and said so) when it is worth more than a new point.
  */
 import { DomainError, invalidInput, isDomainError } from '../errors';
-import { codePoint, validateSpace, type Factor, type FactorSpace, type Point } from '../factors';
+import { desirability } from '../analysis';
+import { augmentDesign } from '../design';
+import { codePoint, decodePoint, validateSpace, type Factor, type FactorSpace, type Point } from '../factors';
 import { seededRandom, type RandomSource } from '../random';
 import { expectedImprovement, logExpectedImprovement } from './acquisition';
 import { feasibleCoded, latinHypercubeCandidates, perturbations, snapCoded } from './candidates';
 import { feasibilityProbability, fitFeasibility, type FeasibilityModel } from './feasibility';
-import { fitGaussianProcess, pointCovariance, type GaussianProcessModel } from './gaussian-process';
+import { fitGaussianProcess, leaveOneOutResiduals, pointCovariance, type GaussianProcessModel } from './gaussian-process';
 import { KERNEL_KINDS } from './kernels';
 import { BelieverPosterior, CandidateVariances, meanStandardised, meansAtObservations, noiseStandardised, predictStandardised } from './posterior';
-import { refineDesignCandidates } from './refine';
+import { refineDesignCandidates, sequentialPredictionVariances } from './refine';
 import type { Suggestion, SuggestionRequest, SuggestionResult, SurrogateSummary } from './types';
 
 const STRATEGIES = ['improve', 'explore', 'refine', 'confirm'] as const;
@@ -45,6 +47,10 @@ function reField(e: unknown, prefix: string): unknown {
   return e;
 }
 
+function toNumber(raw: unknown): number {
+  return typeof raw === 'number' ? raw : typeof raw === 'string' && raw.trim() !== '' ? Number(raw) : NaN;
+}
+
 /** Validate the request and code its data rows. */
 export function prepareData(request: SuggestionRequest): PreparedData {
   const space: FactorSpace = { factors: request.factors, constraints: request.constraints, disallowed: request.disallowed };
@@ -68,6 +74,11 @@ export function prepareData(request: SuggestionRequest): PreparedData {
     if (!(Number.isFinite(minutes) && minutes >= 0)) throw invalidInput(`swapCost.${name}`, 'a change cost is a number of minutes, zero or more');
   }
   if (!Array.isArray(request.data)) throw invalidInput('data', 'data must be a list of observed trials');
+  const responses = request.responses && request.responses.length > 0 ? request.responses : null;
+  if (responses) {
+    // Checks each response's goal and limits (throws naming the response).
+    desirability(Object.fromEntries(responses.map((r) => [r.name, 0])), responses);
+  }
   const inputs: Float64Array[] = [];
   const y: number[] = [];
   const all: PreparedData['all'] = [];
@@ -81,6 +92,17 @@ export function prepareData(request: SuggestionRequest): PreparedData {
     const failed = row.failed === true;
     all.push({ coded, failed, row: i });
     if (failed) return;
+    if (responses) {
+      const values: Record<string, number> = {};
+      for (const r of responses) {
+        const v = toNumber(row[r.name]);
+        if (!Number.isFinite(v)) throw invalidInput(`data[${i}].${r.name}`, `trial ${i + 1} has no numeric ${r.name}; give the measured value or mark the trial failed`);
+        values[r.name] = v;
+      }
+      inputs.push(coded);
+      y.push(desirability(values, responses).overall);
+      return;
+    }
     const raw = row[request.response];
     const value = typeof raw === 'number' ? raw : typeof raw === 'string' && raw.trim() !== '' ? Number(raw) : NaN;
     if (!Number.isFinite(value)) {
@@ -95,12 +117,17 @@ export function prepareData(request: SuggestionRequest): PreparedData {
   return { space, inputs, y, all };
 }
 
-export function summarise(model: GaussianProcessModel, factors: readonly Factor[]): SurrogateSummary {
+export function summarise(model: GaussianProcessModel, factors: readonly Factor[], trialNumbers?: readonly number[]): SurrogateSummary {
   const lengthScales: Record<string, number> = {};
   factors.forEach((f, k) => {
     lengthScales[f.name] = model.lengthScales[k]!;
   });
+  const loo = leaveOneOutResiduals(model);
+  const residuals = loo.residual.map((residual, i) => ({ trial: trialNumbers?.[i] ?? i + 1, residual, standardised: loo.standardised[i]! }));
+  const rmse = Math.sqrt(loo.residual.reduce((s, r) => s + r * r, 0) / model.n);
+  const withinTwoSd = loo.standardised.filter((z) => Math.abs(z) <= 2).length / model.n;
   return {
+    leaveOneOut: { residuals, rmse, withinTwoSd },
     kernel: model.kernel,
     lengthScales,
     noiseVariance: model.noiseVariance,
@@ -591,14 +618,41 @@ function confirmStrategy(ctx: Context): Suggestion[] {
   });
 }
 
+/**
+ * D-optimal augmentation of the trials run so far for a quadratic model, by the design engine's optimal
+ * search (coordinate exchange); when a pick falls below the feasibility threshold, or the search cannot
+ * run, a sequential D-optimal pick among the eligible candidates is used instead.
+ */
 function refineStrategy(ctx: Context): Suggestion[] {
-  const allowed = ctx.pool.filter((_, c) => ctx.eligible[c] === 1);
-  const picks = refineDesignCandidates(ctx.factors, ctx.data.inputs, allowed, ctx.request.count);
-  return picks.map((pick) => {
-    const c = ctx.pool.indexOf(pick.coded);
-    const chosen: Chosen = { coded: pick.coded, acquisition: pick.predictionVariance, feasibility: ctx.poolFeasibility[c] ?? 1, replicateOf: ctx.replicateOf[c] ?? -1 };
+  const { request, factors, data } = ctx;
+  let coded: Float64Array[] | null = null;
+  let method = 'optimal augmentation';
+  try {
+    const result = augmentDesign(
+      {
+        factors, method: 'optimal', runs: request.count, model: 'quadratic', criterion: 'D',
+        constraints: request.constraints, disallowed: request.disallowed,
+        existingRuns: data.inputs.map((x) => decodePoint(factors, Array.from(x))), seed: request.seed ?? 1,
+      },
+      { starts: 8 },
+    );
+    const fresh = result.runs.filter((r) => !r.existing).map((r) => Float64Array.from(r.coded));
+    const ok = fresh.every((x) => feasibleCoded(data.space, x) && (ctx.relaxed || probabilityOk(ctx, x) >= ctx.threshold));
+    if (fresh.length === request.count && ok) coded = fresh;
+  } catch (e) {
+    if (!isDomainError(e)) throw e;
+  }
+  if (coded === null) {
+    method = 'sequential pick among settings that keep the failure risk acceptable';
+    const allowed = ctx.pool.filter((_, c) => ctx.eligible[c] === 1);
+    coded = refineDesignCandidates(factors, data.inputs, allowed, request.count).map((p) => p.coded);
+  }
+  const variances = sequentialPredictionVariances(factors, data.inputs, coded);
+  return coded.map((x, i) => {
+    const c = ctx.pool.findIndex((p, k) => ctx.replicateOf[k]! >= 0 && sameSetting(p, x));
+    const chosen: Chosen = { coded: x, acquisition: variances[i]!, feasibility: probabilityOk(ctx, x), replicateOf: c >= 0 ? ctx.replicateOf[c]! : -1 };
     return toSuggestion(ctx, chosen, (mean, sd) => {
-      let text = `Refines the quadratic model: the current design predicts worst here (scaled prediction variance ${formatNumber(pick.predictionVariance)}); predicted ${formatNumber(mean)} ± ${formatNumber(sd)}.`;
+      let text = `Refines the quadratic model (D-optimal, ${method}): the design so far predicts poorly here (scaled prediction variance ${formatNumber(variances[i]!)}); predicted ${formatNumber(mean)} ± ${formatNumber(sd)}.`;
       if (ctx.feasibility) text += ` Chance of running without failure ${Math.round(chosen.feasibility * 100)} %.`;
       return text;
     });
@@ -618,11 +672,16 @@ export function fitSurrogate(request: SuggestionRequest, data: PreparedData = pr
 }
 
 /** Suggest the next batch of trials for a campaign's data. */
-export function suggestTrials(request: SuggestionRequest): SuggestionResult {
+export function suggestTrials(input: SuggestionRequest): SuggestionResult {
+  const combined = input.responses && input.responses.length > 0;
+  // Several responses: the overall desirability is the response, always maximised.
+  const request: SuggestionRequest = combined ? { ...input, goal: 'maximize', response: input.response || 'desirability' } : input;
   const data = prepareData(request);
   const model = fitSurrogate(request, data);
   const ctx = buildContext(request, data, model, seededRandom((request.seed ?? 1) + 7919));
   const strategy = request.strategy ?? 'improve';
   const run = { improve: improveStrategy, explore: exploreStrategy, confirm: confirmStrategy, refine: refineStrategy }[strategy];
-  return { suggestions: run(ctx), model: summarise(model, request.factors) };
+  const summary = summarise(model, request.factors, ctx.trialNumber);
+  if (combined) summary.desirabilityOf = input.responses!.map((r) => r.name);
+  return { suggestions: run(ctx), model: summary };
 }

@@ -1,5 +1,6 @@
 /** Shapes of a next-trials request and its answer (the API body of POST /api/v1/suggestions). */
 import type { DisallowedCombination, Factor, FactorValue, LinearConstraint, Point } from '../factors';
+import type { DesirabilityResponse } from '../analysis';
 import type { KernelKind } from './kernels';
 
 export type SuggestionStrategy = 'improve' | 'explore' | 'refine' | 'confirm';
@@ -26,6 +27,11 @@ export interface SuggestionRequest {
   constraints?: LinearConstraint[];
   disallowed?: DisallowedCombination[];
   kernel?: KernelKind;
+  /**
+   * Several responses at once: each trial's overall desirability (Derringer & Suich) of these responses
+   * becomes the modelled response, maximised; `response` then only labels it and `goal` is ignored.
+   */
+  responses?: DesirabilityResponse[];
 }
 
 export interface Suggestion {
@@ -54,6 +60,17 @@ export interface SurrogateSummary {
   logMarginalLikelihood: number;
   /** Observations the surrogate was fitted to (failed trials excluded). */
   observations: number;
+  /** Leave-one-out check of the surrogate (hyperparameters held): can it be trusted? */
+  leaveOneOut: {
+    /** Per fitted trial: 1-based trial number in the request's data, y − μ₋ᵢ, and that divided by its predictive sd. */
+    residuals: { trial: number; residual: number; standardised: number }[];
+    /** Root mean square of the residuals, response units. */
+    rmse: number;
+    /** Share of standardised residuals within ±2 (about 0.95 when the model's uncertainty is honest). */
+    withinTwoSd: number;
+  };
+  /** Set when several responses were combined: the modelled response is their overall desirability. */
+  desirabilityOf?: string[];
 }
 
 export interface SuggestionResult {

@@ -36,6 +36,23 @@ export const suggestionRequestSchema = z.object({
     .optional(),
   disallowed: z.array(z.object({ levels: z.record(z.string(), z.union([z.number(), z.string()])) })).max(200).optional(),
   kernel: z.enum(['matern52', 'squared-exponential']).optional(),
+  responses: z
+    .array(
+      z.object({
+        name,
+        unit: z.string().max(40).optional(),
+        goal: z.enum(['maximize', 'minimize', 'target'], { error: 'goal must be "maximize", "minimize" or "target"' }),
+        target: finite.optional(),
+        lower: finite.optional(),
+        upper: finite.optional(),
+        shape: z.number().positive().optional(),
+        shapeLow: z.number().positive().optional(),
+        shapeHigh: z.number().positive().optional(),
+        importance: z.number().positive().optional(),
+      }),
+    )
+    .max(20)
+    .optional(),
 });
 
 export type SuggestionRequestInput = z.infer<typeof suggestionRequestSchema>;

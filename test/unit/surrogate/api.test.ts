@@ -53,3 +53,17 @@ describe('POST /api/v1/suggestions', () => {
     expect(res.status).toBe(422);
   });
 });
+
+describe('POST /api/v1/suggestions: optional fields', () => {
+  it('accepts a strategy, change costs, minutes per trial and several responses', () => {
+    const data = body.data.filter((r) => !r.failed).map((r) => ({ ...r, tilt: 2 + (r.payload as number) }));
+    const out = handleSuggestionRequest({
+      ...body, data, strategy: 'explore', count: 2, trialMinutes: 6, swapCost: { preload: 0 },
+      responses: [{ name: 'speed', goal: 'maximize', lower: 0.5, upper: 1.8 }, { name: 'tilt', goal: 'minimize', lower: 2, upper: 5 }],
+    });
+    expect(out.suggestions).toHaveLength(2);
+    expect(out.model.desirabilityOf).toEqual(['speed', 'tilt']);
+    expect(() => handleSuggestionRequest({ ...body, swapCost: { preload: -1 } })).toThrow(/swapCost/);
+    expect(() => handleSuggestionRequest({ ...body, feasibilityThreshold: 2 })).toThrow(/feasibilityThreshold/);
+  });
+});

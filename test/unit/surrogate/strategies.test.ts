@@ -86,10 +86,17 @@ describe('other strategies', () => {
     expect(r.suggestions[0]!.acquisition).toBeGreaterThanOrEqual(r.suggestions[2]!.acquisition);
   });
 
-  it('refine: D-optimal augmentation for the quadratic model', () => {
+  it('refine: D-optimal augmentation for the quadratic model by the design engine', () => {
     const r = suggestTrials({ ...base, strategy: 'refine', count: 2 });
     expect(r.suggestions).toHaveLength(2);
-    expect(r.suggestions[0]!.reason).toMatch(/quadratic model/);
+    expect(r.suggestions[0]!.reason).toMatch(/quadratic model \(D-optimal, optimal augmentation\)/);
+    expect(r.suggestions[0]!.acquisition).toBeGreaterThan(0);
+  });
+
+  it('refine: keeps to settings above the feasibility threshold when trials have failed', () => {
+    const r = suggestTrials({ ...base, data: grid(5), strategy: 'refine', count: 3, feasibilityThreshold: 0.8 });
+    expect(r.suggestions).toHaveLength(3);
+    for (const s of r.suggestions) expect(s.feasibility).toBeGreaterThanOrEqual(0.8);
   });
 
   it('refineDesignCandidates: each pick multiplies |FᵀF| by 1 + its prediction variance (matrix determinant lemma)', () => {
@@ -183,5 +190,46 @@ describe('surrogate slices for plotting', () => {
     expect(g.mean[0]).toHaveLength(5);
     expect(g.sd[4]![4]).toBeGreaterThanOrEqual(0);
     expect(() => surrogateGrid(model, 'preload', 'preload')).toThrow(/two different/);
+  });
+});
+
+describe('several responses through desirability (Derringer & Suich 1980)', () => {
+  it('models the overall desirability and heads where both responses are satisfied', () => {
+    // Invented: hop height (maximise, 20..40 mm) and landing tilt (minimise, 2..10 degrees) against preload.
+    const one: Factor[] = [{ name: 'preload', kind: 'continuous', low: 1, high: 5, unit: 'mm' }];
+    const data = [1, 1.5, 2, 2.5, 3, 3.5, 4, 4.5, 5].map((preload) => ({ preload, height: 15 + 6 * preload, tilt: 1 + 2 * Math.max(0, preload - 3) ** 2 }));
+    const r = suggestTrials({
+      factors: one, data, response: 'overall', goal: 'minimize', count: 1, seed: 2,
+      responses: [
+        { name: 'height', goal: 'maximize', lower: 20, upper: 40 },
+        { name: 'tilt', goal: 'minimize', lower: 2, upper: 10 },
+      ],
+    });
+    expect(r.model.desirabilityOf).toEqual(['height', 'tilt']);
+    const p = Number(r.suggestions[0]!.values.preload);
+    // Overall desirability peaks between 3 and 4 mm (height still rising, tilt not yet large).
+    expect(p).toBeGreaterThan(2.8);
+    expect(p).toBeLessThan(4.2);
+    expect(r.suggestions[0]!.mean).toBeGreaterThan(0.4);
+  });
+
+  it('names a response missing from a trial', () => {
+    const one: Factor[] = [{ name: 'preload', kind: 'continuous', low: 1, high: 5 }];
+    expect(() => suggestTrials({
+      factors: one, data: [{ preload: 1, height: 20 }, { preload: 2, height: 25, tilt: 3 }], response: 'overall', goal: 'maximize', count: 1,
+      responses: [{ name: 'height', goal: 'maximize', lower: 20, upper: 40 }, { name: 'tilt', goal: 'minimize', lower: 2, upper: 10 }],
+    })).toThrow(/trial 1 has no numeric tilt/);
+  });
+});
+
+describe('leave-one-out summary', () => {
+  it('reports per-trial residuals, their RMS and the share within two sd', () => {
+    const data = grid(4).filter((r) => !r.failed);
+    const r = suggestTrials({ factors, data, response: 'height', goal: 'maximize', count: 1, seed: 1 });
+    const loo = r.model.leaveOneOut;
+    expect(loo.residuals).toHaveLength(data.length);
+    expect(loo.residuals[0]!.trial).toBe(1);
+    expect(loo.rmse).toBeCloseTo(Math.sqrt(loo.residuals.reduce((s, x) => s + x.residual ** 2, 0) / data.length), 12);
+    expect(loo.withinTwoSd).toBeGreaterThan(0.7);
   });
 });
