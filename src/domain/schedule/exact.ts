@@ -28,7 +28,6 @@ export function exactPlan(p: Prepared, units: readonly Unit[], initial: readonly
   const n = units.length;
   const used = new Array<boolean>(n).fill(false);
   let best: { score: Score; states: RigState[]; unplaced: Unit[] } | undefined;
-  const changesOf = (s: RigState) => s.placements.reduce((a, x) => a + x.changes, 0);
 
   const visit = (states: RigState[], unplaced: Unit[], score: Score, depth: number) => {
     if (best && worse(score, best.score)) return;
@@ -48,7 +47,7 @@ export function exactPlan(p: Prepared, units: readonly Unit[], initial: readonly
         placedSomewhere = true;
         const nextStates = states.slice();
         nextStates[r] = next;
-        visit(nextStates, unplaced, [score[0], score[1] + changesOf(next) - changesOf(states[r]!), Math.max(score[2], next.lastEnd)], depth + 1);
+        visit(nextStates, unplaced, [score[0], score[1] + next.changes - states[r]!.changes, Math.max(score[2], next.lastEnd)], depth + 1);
       }
       // Leaving a unit out is allowed (it is reported as unscheduled), but never better than placing it.
       if (!placedSomewhere) visit(states, [...unplaced, unit], [score[0] + unit.runs.length, score[1], score[2]], depth + 1);

@@ -11,7 +11,7 @@
 import { changeoverLowerBound } from './bounds';
 import { exactPlan, exactSearchSize } from './exact';
 import type { Prepared, Unit } from './prepare';
-import { emptyRigState, placeUnit, type RigState } from './rig-timeline';
+import { emptyRigState, placementsOf, placeUnit, type RigState } from './rig-timeline';
 import { sequentialFill, type RigPlan } from './sequential';
 
 /** Below this many leaves of the search tree the plan is found by exact search. */
@@ -182,7 +182,7 @@ function simulate(p: Prepared, initial: readonly RigState[], sequence: Unit[][])
 
 function countChanges(plan: RigPlan): number {
   let n = 0;
-  for (const s of plan.states) for (const x of s.placements) n += x.changes;
+  for (const s of plan.states) n += s.changes;
   return n;
 }
 
@@ -266,7 +266,7 @@ function keepDesignOrder(p: Prepared, initial: readonly RigState[], units: reado
   let changed = false;
   const sequence = plan.states.map((state) => {
     const list: Unit[] = [];
-    for (const x of state.placements) {
+    for (const x of placementsOf(state)) {
       const u = unitOfRun.get(x.run.id);
       if (u && list[list.length - 1] !== u) list.push(u);
     }
@@ -296,7 +296,7 @@ function keepDesignOrder(p: Prepared, initial: readonly RigState[], units: reado
  */
 function improveByMoves(p: Prepared, initial: readonly RigState[], start: SequencedPlan): SequencedPlan {
   const runs = start.sequence.reduce((s, list) => s + list.reduce((a, u) => a + u.runs.length, 0), 0);
-  let budget = Math.max(60, Math.min(3000, Math.floor(100_000 / Math.max(1, runs))));
+  let budget = Math.max(10, Math.min(3000, Math.floor(100_000 / Math.max(1, runs))));
   let current = start;
   const rigs = current.sequence.length;
   const tryCandidate = (sequence: Unit[][]): boolean => {

@@ -4,7 +4,7 @@
  */
 import { parseInstant } from './calendar';
 import { prepare } from './prepare';
-import { emptyRigState, placeRun } from './rig-timeline';
+import { emptyRigState, placementsOf, placeRun } from './rig-timeline';
 import type { Assignment, ScheduleRequest, ScheduleResult } from './types';
 
 export interface ManualMove {
@@ -92,7 +92,7 @@ export function validateManualMove(request: ScheduleRequest, result: ScheduleRes
       break;
     }
   }
-  const placed = state.placements;
+  const placed = placementsOf(state);
   const moved: Assignment[] = placed.map((x) => ({ runId: x.run.id, rig: move.rig, start: new Date(x.start).toISOString(), end: new Date(x.end).toISOString() }));
   if (placed.length === unit.runs.length) {
     const lastMoved = placed[placed.length - 1]!;

@@ -5,6 +5,7 @@
 import { changeoverLowerBound, makespanLowerBound, minimumRigTimeMs } from './bounds';
 import { MINUTE, prepare, type Prepared, type Unit } from './prepare';
 import { groupedPlan } from './grouped';
+import { placementsOf } from './rig-timeline';
 import { sequentialFill, type RigPlan } from './sequential';
 import type { Infeasibility, LevelValue, RigActivity, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
 
@@ -36,7 +37,7 @@ export function explainUnplaced(p: Prepared, plan: RigPlan): { unscheduled: Unsc
     });
   }
   const longestInterval = Math.max(0, ...p.rigs.flatMap((r) => r.intervals.map((i) => i.end - i.start)));
-  const usedByRig = plan.states.map((s) => s.placements.reduce((a, x) => a + (x.end - x.start), 0));
+  const usedByRig = plan.states.map((s) => placementsOf(s).reduce((a, x) => a + (x.end - x.start), 0));
   const freeMs = p.rigs.reduce((s, r, i) => s + r.capacityMs - usedByRig[i]!, 0);
   const unplacedMs = plan.unplaced.reduce((s, u) => s + u.workMs, 0);
   let reportedFragmentation = false;
@@ -90,14 +91,15 @@ export interface ResultFrame {
 
 /** Turn rig timelines into the public answer. */
 export function assembleResult(p: Prepared, plan: RigPlan, frame?: ResultFrame): ScheduleResult {
-  const placements = plan.states.flatMap((s) => s.placements);
+  const perRig = plan.states.map(placementsOf);
+  const placements = perRig.flat();
   placements.sort((a, b) => a.start - b.start || a.rig - b.rig);
   const iso = (ms: number) => new Date(ms).toISOString();
   const assignments = placements.map((x) => ({ runId: x.run.id, rig: p.rigs[x.rig]!.name, start: iso(x.start), end: iso(x.end) }));
 
   // Previous run on the same rig, to report changeover levels "from → to".
   const previousOnRig = new Map<string, number>();
-  for (const s of plan.states) s.placements.forEach((x, i) => i > 0 && previousOnRig.set(x.run.id, s.placements[i - 1]!.run.index));
+  for (const list of perRig) list.forEach((x, i) => i > 0 && previousOnRig.set(x.run.id, list[i - 1]!.run.index));
 
   const activities: RigActivity[] = [];
   let changeovers = 0;

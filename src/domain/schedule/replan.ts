@@ -8,7 +8,7 @@ import { parseInstant, subtractIntervals, type MsInterval } from './calendar';
 import { groupedPlan } from './grouped';
 import { assembleResult, type ResultFrame } from './plan';
 import { prepare, type Prepared, type Unit } from './prepare';
-import { emptyRigState, placeUnit, type Placement, type RigState } from './rig-timeline';
+import { emptyRigState, placementsOf, placeUnit, pushPlacement, type Placement, type RigState } from './rig-timeline';
 import { sequentialFill } from './sequential';
 import type { Assignment, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
 
@@ -74,7 +74,7 @@ export function replan(request: ScheduleRequest, fixed: readonly Assignment[], e
   const original = prepare(request);
   const originalOrigin = original.originMs;
   const states = initialStates(p, done, nowMs, original.rigs.map((r) => r.intervals));
-  const fixedStates = states.map((s) => ({ ...s, placements: s.placements.slice() }));
+  const fixedPlacements = states.flatMap(placementsOf);
   const continued: Unit[] = [];
 
   const notes: string[] = [];
@@ -101,7 +101,6 @@ export function replan(request: ScheduleRequest, fixed: readonly Assignment[], e
   }
 
   const plan = request.strategy === 'sequential' ? sequentialFill(p, remaining, states) : groupedPlan(p, remaining, states);
-  const fixedPlacements = fixedStates.flatMap((s) => s.placements);
   const frame: ResultFrame = {
     originMs: Math.min(originalOrigin, ...fixedPlacements.map((x) => x.start)),
     boundUnits: [...continued, ...remaining],
@@ -142,7 +141,7 @@ function initialStates(p: Prepared, done: readonly Assignment[], nowMs: number, 
         if (at !== undefined) activities.push({ kind: 'changeover', start: at, end: at + changeMs, factors: changed });
       }
       const placement: Placement = { run, rig: rig.index, start, end, activities, changes, previousLevels: state.lastLevels.slice() };
-      state.placements.push(placement);
+      pushPlacement(state, placement);
       state.lastEnd = Math.max(state.lastEnd, end);
       state.lastLevels = run.levels.slice();
       state.trialsSinceUpkeep++;

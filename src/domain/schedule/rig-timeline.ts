@@ -23,7 +23,7 @@ export interface Placement {
   activities: PlacedActivity[];
   /** Level changes of factors with a positive changeover time. */
   changes: number;
-  /** Previous levels (for reporting from → to). */
+  /** Previous levels (for reporting from → to). Level arrays are shared and never changed in place. */
   previousLevels: (string | undefined)[];
 }
 
@@ -37,7 +37,31 @@ export interface RigState {
   lastLevels: (string | undefined)[];
   trialsSinceUpkeep: number;
   msSinceUpkeep: number;
-  placements: Placement[];
+  /** Placements as a persistent list (newest last), so copies of a state share their history. */
+  tail: PlacementNode | null;
+  count: number;
+  /** Level changes so far (factors with a positive changeover time). */
+  changes: number;
+}
+
+export interface PlacementNode {
+  placement: Placement;
+  prev: PlacementNode | null;
+}
+
+/** The placements of a state, oldest first. */
+export function placementsOf(state: RigState): Placement[] {
+  const out = new Array<Placement>(state.count);
+  let node = state.tail;
+  for (let i = state.count - 1; i >= 0 && node; i--, node = node.prev) out[i] = node.placement;
+  return out;
+}
+
+/** Append a placement to a state's history (mutates the state, never the shared history). */
+export function pushPlacement(state: RigState, placement: Placement): void {
+  state.tail = { placement, prev: state.tail };
+  state.count++;
+  state.changes += placement.changes;
 }
 
 export function emptyRigState(rig: PreparedRig): RigState {
@@ -49,13 +73,15 @@ export function emptyRigState(rig: PreparedRig): RigState {
     lastLevels: [],
     trialsSinceUpkeep: 0,
     msSinceUpkeep: 0,
-    placements: [],
+    tail: null,
+    count: 0,
+    changes: 0,
   };
 }
 
-/** Copy that shares the (append-only) placements prefix. */
+/** Copy that shares the placement history (appending to the copy leaves the original as it was). */
 export function cloneRigState(s: RigState): RigState {
-  return { ...s, lastLevels: s.lastLevels.slice(), placements: s.placements.slice() };
+  return { ...s };
 }
 
 /** Place one run at the end of the timeline; mutates `state`. Returns false when it does not fit. */
@@ -106,11 +132,11 @@ export function placeRun(state: RigState, run: PreparedRun, p: Prepared, window?
         t += upkeepMs;
       }
       if (changed.length > 0 && changeMs > 0) activities.push({ kind: 'changeover', start: t, end: t + changeMs, factors: changed });
-      state.placements.push({ run, rig: state.rig.index, start, end, activities, changes, previousLevels: state.lastLevels.slice() });
+      pushPlacement(state, { run, rig: state.rig.index, start, end, activities, changes, previousLevels: state.lastLevels });
       state.intervalIndex = j;
       state.cursor = end;
       state.lastEnd = end;
-      state.lastLevels = run.levels.slice();
+      state.lastLevels = run.levels;
       if (upkeepDue) {
         state.trialsSinceUpkeep = 0;
         state.msSinceUpkeep = 0;

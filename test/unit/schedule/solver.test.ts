@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { planSchedule, type ScheduleRequest } from '@/domain/schedule';
 import { prepare } from '@/domain/schedule/prepare';
-import { emptyRigState, placeUnit, type RigState } from '@/domain/schedule/rig-timeline';
+import { emptyRigState, placementsOf, placeUnit, type RigState } from '@/domain/schedule/rig-timeline';
 import { requestArbitrary, scheduleViolations } from './invariants';
 
 function permutations<T>(xs: T[]): T[][] {
@@ -27,7 +27,7 @@ function bruteForce(req: ScheduleRequest): [number, number, number] {
         if (next) states[r] = next;
         else unplaced += unit.runs.length;
       }
-      const changes = states.reduce((s, st) => s + st.placements.reduce((a, x) => a + x.changes, 0), 0);
+      const changes = states.reduce((s, st) => s + placementsOf(st).reduce((a, x) => a + x.changes, 0), 0);
       const finish = Math.max(...states.map((s) => s.lastEnd));
       const key: [number, number, number] = [unplaced, changes, finish];
       if (key[0] < best[0] || (key[0] === best[0] && (key[1] < best[1] || (key[1] === best[1] && key[2] < best[2])))) best = key;
