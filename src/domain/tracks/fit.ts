@@ -1,9 +1,10 @@
 /**
  * Least-squares fits over a flight phase: z(τ) = a + b τ + c τ² and x(τ), y(τ) = p + q τ, with τ = t − t₀
  * centred on the phase for conditioning. Sums are gathered in one pass over typed arrays; the 3 × 3
- * normal equations are solved with ml-matrix.
+ * normal equations are solved in closed form (Cramer's rule): a long track has tens of thousands of
+ * flights, and a general matrix library's allocations per solve cost more than the solve (see the
+ * 10M-sample case in bench/cases/tracks.ts).
  */
-import { Matrix, solve } from 'ml-matrix';
 
 export interface FlightFit {
   /** Centre time t₀, s. */
@@ -32,19 +33,23 @@ export function fitFlight(
 ): FlightFit | null {
   let n = 0;
   let sumT = 0;
+  let sumZ = 0;
   for (let i = start; i < end; i++) {
     if (keep && !keep[i - start]) continue;
     n++;
     sumT += t[i]!;
+    sumZ += z[i]!;
   }
   if (n < 4) return null;
   const t0 = sumT / n;
+  // Heights are centred too, so that a large offset of the capture volume costs no precision.
+  const z0 = sumZ / n;
   let s1 = 0, s2 = 0, s3 = 0, s4 = 0, sz = 0, stz = 0, st2z = 0, sx = 0, stx = 0, sy = 0, sty = 0;
   for (let i = start; i < end; i++) {
     if (keep && !keep[i - start]) continue;
     const tau = t[i]! - t0;
     const tau2 = tau * tau;
-    const zi = z[i]!;
+    const zi = z[i]! - z0;
     s1 += tau;
     s2 += tau2;
     s3 += tau2 * tau;
@@ -57,15 +62,18 @@ export function fitFlight(
     sy += y[i]!;
     sty += tau * y[i]!;
   }
-  let coefficients: number[];
-  try {
-    const normal = new Matrix([[n, s1, s2], [s1, s2, s3], [s2, s3, s4]]);
-    coefficients = solve(normal, Matrix.columnVector([sz, stz, st2z])).to1DArray();
-  } catch {
-    return null;
-  }
-  const [a, b, c] = coefficients as [number, number, number];
-  if (![a, b, c].every(Number.isFinite)) return null;
+  // Normal equations [[n, s1, s2], [s1, s2, s3], [s2, s3, s4]] · (a, b, c) = (sz, stz, st2z).
+  const m11 = s2 * s4 - s3 * s3;
+  const m12 = s1 * s4 - s3 * s2;
+  const m13 = s1 * s3 - s2 * s2;
+  const det = n * m11 - s1 * m12 + s2 * m13;
+  const scale = Math.abs(n * s2 * s4) || 1;
+  if (!(Math.abs(det) > 1e-12 * scale)) return null;
+  const a0 = (sz * m11 - s1 * (stz * s4 - s3 * st2z) + s2 * (stz * s3 - s2 * st2z)) / det;
+  const b = (n * (stz * s4 - s3 * st2z) - sz * m12 + s2 * (s1 * st2z - stz * s2)) / det;
+  const c = (n * (s2 * st2z - s3 * stz) - s1 * (s1 * st2z - s2 * stz) + sz * m13) / det;
+  const a = a0 + z0;
+  if (!(Number.isFinite(a) && Number.isFinite(b) && Number.isFinite(c))) return null;
   const lineDet = n * s2 - s1 * s1;
   if (!(lineDet > 0)) return null;
   const qx = (n * stx - s1 * sx) / lineDet;

@@ -143,25 +143,41 @@ interface Flight {
   fit: FlightFit;
 }
 
+// Scratch space reused across segments (long tracks have tens of thousands of flights).
+let keepScratch = new Uint8Array(4096);
+let residualScratch = new Float64Array(4096);
+
 /** Fit one segment: the upper part of the arc, one pass of outlier rejection. */
 function fitSegment(s: TrackSamples, segment: FlightSegment, ground: number, enter: number, noise: number): FlightFit | null {
   const { start, end } = segment;
+  const t = s.t;
+  const z = s.z;
+  const length = end - start;
+  if (keepScratch.length < length) {
+    keepScratch = new Uint8Array(length * 2);
+    residualScratch = new Float64Array(length * 2);
+  }
+  const keep = keepScratch;
+  const residuals = residualScratch;
   let top = -Infinity;
-  for (let i = start; i < end; i++) if (s.z[i]! > top) top = s.z[i]!;
+  for (let i = start; i < end; i++) if (z[i]! > top) top = z[i]!;
   const level = ground + Math.max(enter, 0.1 * (top - ground));
-  const keep = new Uint8Array(end - start);
   let kept = 0;
-  for (let i = start; i < end; i++) if (s.z[i]! > level) { keep[i - start] = 1; kept++; }
+  for (let i = start; i < end; i++) {
+    const above = z[i]! > level ? 1 : 0;
+    keep[i - start] = above;
+    kept += above;
+  }
   if (kept < MIN_FIT_SAMPLES) return null;
-  let fit = fitFlight(s.t, s.x, s.y, s.z, start, end, keep);
+  let fit = fitFlight(t, s.x, s.y, z, start, end, keep);
   if (!fit) return null;
   // Outlier rejection: residuals beyond 5 robust standard deviations (or 5 σ of the noise).
-  const residuals = new Float64Array(kept);
+  const { t0, a, b, c } = fit;
   let k = 0;
   for (let i = start; i < end; i++) {
     if (!keep[i - start]) continue;
-    const tau = s.t[i]! - fit.t0;
-    residuals[k++] = Math.abs(s.z[i]! - (fit.a + tau * (fit.b + tau * fit.c)));
+    const tau = t[i]! - t0;
+    residuals[k++] = Math.abs(z[i]! - (a + tau * (b + tau * c)));
   }
   const robust = medianOfRange(residuals, 0, kept) * 1.4826;
   const limit = 5 * Math.max(robust, noise, 1e-9);
@@ -169,9 +185,12 @@ function fitSegment(s: TrackSamples, segment: FlightSegment, ground: number, ent
   k = 0;
   for (let i = start; i < end; i++) {
     if (!keep[i - start]) continue;
-    if (residuals[k++]! > limit) { keep[i - start] = 0; removed++; }
+    if (residuals[k++]! > limit) {
+      keep[i - start] = 0;
+      removed++;
+    }
   }
-  if (removed > 0 && kept - removed >= MIN_FIT_SAMPLES) fit = fitFlight(s.t, s.x, s.y, s.z, start, end, keep) ?? fit;
+  if (removed > 0 && kept - removed >= MIN_FIT_SAMPLES) fit = fitFlight(t, s.x, s.y, z, start, end, keep) ?? fit;
   return fit;
 }
 
