@@ -142,12 +142,45 @@ export function pivotedQr(x: Float64Array, n: number, p: number, rankTolerance?:
     beta[k] = b;
     diag[k] = alpha;
     a[off + k] = v0k;
-    for (let j = k + 1; j < p; j++) {
+    // Apply the reflector to the trailing columns, four at a time so v is read once per four.
+    let j0 = k + 1;
+    for (; j0 + 3 < p; j0 += 4) {
+      const o0 = j0 * n;
+      const o1 = o0 + n;
+      const o2 = o1 + n;
+      const o3 = o2 + n;
+      let w0 = 0;
+      let w1 = 0;
+      let w2 = 0;
+      let w3 = 0;
+      for (let i = k; i < n; i++) {
+        const v = a[off + i]!;
+        w0 += v * a[o0 + i]!;
+        w1 += v * a[o1 + i]!;
+        w2 += v * a[o2 + i]!;
+        w3 += v * a[o3 + i]!;
+      }
+      w0 *= b;
+      w1 *= b;
+      w2 *= b;
+      w3 *= b;
+      for (let i = k; i < n; i++) {
+        const v = a[off + i]!;
+        a[o0 + i] -= w0 * v;
+        a[o1 + i] -= w1 * v;
+        a[o2 + i] -= w2 * v;
+        a[o3 + i] -= w3 * v;
+      }
+    }
+    for (let j = j0; j < p; j++) {
       const oj = j * n;
       let w = 0;
       for (let i = k; i < n; i++) w += a[off + i]! * a[oj + i]!;
       w *= b;
       if (w !== 0) for (let i = k; i < n; i++) a[oj + i] -= w * a[off + i]!;
+    }
+    for (let j = k + 1; j < p; j++) {
+      const oj = j * n;
       // Downdate the partial norm; recompute when cancellation makes it unreliable (as LAPACK's xGEQP3).
       const nj = norms[j]!;
       if (nj !== 0) {

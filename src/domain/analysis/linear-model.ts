@@ -55,20 +55,47 @@ function partialSs(fit: LeastSquaresFit, positions: number[]): number {
 
 /** Pure-error sum of squares from runs that share the same factor setting. */
 function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number; groups: number } {
-  const groups = new Map<string, number[]>();
-  frame.points.forEach((pt, i) => {
-    const key = Array.from(pt).join('|');
-    const g = groups.get(key);
+  // Group by a numeric hash of the setting, then split any hash collisions by exact comparison.
+  const buf = new Float64Array(1);
+  const bits = new Uint32Array(buf.buffer);
+  const byHash = new Map<number, number[][]>();
+  const m = frame.pointMatrix;
+  const k = frame.factors.length;
+  const same = (a: number, b: number) => {
+    for (let j = 0; j < k; j++) if (m[a * k + j] !== m[b * k + j]) return false;
+    return true;
+  };
+  let groupsCount = 0;
+  for (let i = 0; i < frame.n; i++) {
+    let h = 0x811c9dc5;
+    for (let j = 0; j < k; j++) {
+      const v = m[i * k + j]!;
+      buf[0] = v === 0 ? 0 : v; // −0 and 0 alike
+      h = Math.imul(h ^ bits[0]!, 0x01000193) >>> 0;
+      h = Math.imul(h ^ bits[1]!, 0x01000193) >>> 0;
+    }
+    const bucket = byHash.get(h);
+    if (!bucket) {
+      byHash.set(h, [[i]]);
+      groupsCount++;
+      continue;
+    }
+    const g = bucket.find((members) => same(members[0]!, i));
     if (g) g.push(i);
-    else groups.set(key, [i]);
-  });
-  let ss = 0;
-  for (const idx of groups.values()) {
-    if (idx.length < 2) continue;
-    const ys = idx.map((i) => y[i]!);
-    ss += sumOfSquaredDeviations(ys, accurateMean(ys));
+    else {
+      bucket.push([i]);
+      groupsCount++;
+    }
   }
-  return { ss, df: frame.n - groups.size, groups: groups.size };
+  let ss = 0;
+  for (const bucket of byHash.values()) {
+    for (const idx of bucket) {
+      if (idx.length < 2) continue;
+      const ys = idx.map((i) => y[i]!);
+      ss += sumOfSquaredDeviations(ys, accurateMean(ys));
+    }
+  }
+  return { ss, df: frame.n - groupsCount, groups: groupsCount };
 }
 
 /**

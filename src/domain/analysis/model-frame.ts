@@ -5,7 +5,6 @@
 import { invalidInput } from '../errors';
 import {
   INTERCEPT,
-  codePoint,
   compileModel,
   levelIndex,
   parseTerm,
@@ -29,7 +28,9 @@ export interface ModelFrame {
   x: Float64Array;
   y: Float64Array;
   /** Per used row, the factor vector as entered into the model (coded or natural; level index for categorical). */
-  points: Float64Array[];
+  readonly points: Float64Array[];
+  /** The same vectors, row-major n × factors.length. */
+  pointMatrix: Float64Array;
   /** Indices into request.data of the rows used, and of rows left out for an empty response. */
   rowIndex: number[];
   excludedRows: number[];
@@ -47,9 +48,46 @@ function asNumber(v: unknown): number {
   return NaN;
 }
 
+/**
+ * Numeric columns read in one pass over the rows (row by row keeps each object in cache): a
+ * number where the cell holds a finite number, NaN elsewhere (missing, text or numeric text).
+ */
+export function numericColumns(data: readonly DataRow[], names: readonly string[]): Float64Array[] {
+  const m = names.length;
+  const cols = names.map(() => new Float64Array(data.length));
+  for (let i = 0; i < data.length; i++) {
+    const row = data[i];
+    if (row === null || typeof row !== 'object') {
+      for (let j = 0; j < m; j++) cols[j]![i] = NaN;
+      continue;
+    }
+    for (let j = 0; j < m; j++) {
+      const v = row[names[j]!];
+      cols[j]![i] = typeof v === 'number' ? v : NaN;
+    }
+  }
+  return cols;
+}
+
 /** Factors for the names used in the terms, inferred from the data: numeric columns are continuous, others categorical. */
-export function inferFactors(data: readonly DataRow[], names: readonly string[]): Factor[] {
-  return names.map((name) => {
+export function inferFactors(data: readonly DataRow[], names: readonly string[], columns?: Float64Array[]): Factor[] {
+  const cols = columns ?? numericColumns(data, names);
+  return names.map((name, nameIndex) => {
+    // Fast path: every cell a finite number.
+    const col = cols[nameIndex]!;
+    let lo = Infinity;
+    let hi = -Infinity;
+    let allNumbers = col.length > 0;
+    for (let i = 0; i < col.length; i++) {
+      const v = col[i]!;
+      if (v !== v || v === Infinity || v === -Infinity) {
+        allNumbers = false;
+        break;
+      }
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+    if (allNumbers) return { name, kind: 'continuous', low: lo, high: hi } as Factor;
     let numeric = true;
     let seen = false;
     let low = Infinity;
@@ -60,21 +98,26 @@ export function inferFactors(data: readonly DataRow[], names: readonly string[])
       const v = row[name];
       if (isMissing(v)) continue;
       seen = true;
-      const num = asNumber(v);
+      const num = typeof v === 'number' ? v : asNumber(v);
       if (Number.isFinite(num)) {
-        low = Math.min(low, num);
-        high = Math.max(high, num);
+        if (num < low) low = num;
+        if (num > high) high = num;
       } else {
         numeric = false;
+        break;
       }
+    }
+    if (!seen) throw invalidInput('terms', `term names "${name}", but no row of data has a value in column "${name}"`);
+    if (numeric) return { name, kind: 'continuous', low, high } as Factor;
+    for (const row of data) {
+      const v = row[name];
+      if (isMissing(v)) continue;
       const label = String(v);
       if (!levelSet.has(label)) {
         levelSet.add(label);
         levels.push(label);
       }
     }
-    if (!seen) throw invalidInput('terms', `term names "${name}", but no row of data has a value in column "${name}"`);
-    if (numeric) return { name, kind: 'continuous', low, high } as Factor;
     if (levels.length < 2) throw invalidInput('terms', `categorical column "${name}" has a single level (${levels[0]}); it cannot enter a model`);
     return { name, kind: 'categorical', levels } as Factor;
   });
@@ -104,7 +147,8 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
   if (usedNames.includes(response)) throw invalidInput('response', `the response "${response}" also appears among the terms; a response cannot explain itself`);
 
   const given = request.factors;
-  const factors: Factor[] = given ? usedNames.map((nm) => given.find((f) => f.name === nm)!) : inferFactors(data, usedNames);
+  const columns = numericColumns(data, [...usedNames, response]);
+  const factors: Factor[] = given ? usedNames.map((nm) => given.find((f) => f.name === nm)!) : inferFactors(data, usedNames, columns);
   const coding: Coding = request.coding ?? (given ? 'coded' : 'natural');
   if (coding === 'coded') {
     for (const f of factors) {
@@ -119,47 +163,87 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
 
   const rowIndex: number[] = [];
   const excludedRows: number[] = [];
-  const yList: number[] = [];
-  const points: Float64Array[] = [];
-  data.forEach((row, i) => {
+  const k = factors.length;
+  let values = new Float64Array(Math.max(1, data.length * k));
+  const yAll = new Float64Array(data.length);
+  const numericCoding = factors.map((f) => {
+    if (f.kind === 'categorical' || coding !== 'coded') return null;
+    const { low, high } = f.kind === 'continuous' ? { low: f.low, high: f.high } : { low: Math.min(...f.values), high: Math.max(...f.values) };
+    return { low, range: high - low };
+  });
+  const names = factors.map((f) => f.name);
+  const fastColumns = factors.map((f, j) => (f.kind === 'categorical' ? null : columns[j]!));
+  const yColumn = columns[usedNames.length]!;
+  let n = 0;
+  for (let i = 0; i < data.length; i++) {
+    const row = data[i];
     if (row === null || typeof row !== 'object') throw invalidInput(`data[${i}]`, `data[${i}] must be an object of column values`);
-    const rv = row[response];
+    const fy = yColumn[i]!;
+    const rv = Number.isFinite(fy) ? fy : row[response];
     if (isMissing(rv)) {
       excludedRows.push(i);
-      return;
+      continue;
     }
-    const yv = asNumber(rv);
+    const yv = typeof rv === 'number' ? rv : asNumber(rv);
     if (!Number.isFinite(yv)) throw invalidInput(`data[${i}].${response}`, `response ${response} in row ${i} must be a finite number, got "${String(rv)}"`);
-    let pt: number[];
-    try {
-      if (coding === 'coded') {
-        pt = codePoint(factors, row as Record<string, number | string>);
-      } else {
-        pt = factors.map((f) => {
-          const v = row[f.name];
-          if (isMissing(v)) throw invalidInput(f.name, `missing value for ${f.name}`);
-          if (f.kind === 'categorical') return levelIndex(f, v as string | number);
+    const off = n * k;
+    for (let j = 0; j < k; j++) {
+      const fast = fastColumns[j];
+      if (fast) {
+        const fv = fast[i]!;
+        if (Number.isFinite(fv)) {
+          const c = numericCoding[j];
+          values[off + j] = c ? (2 * (fv - c.low)) / c.range - 1 : fv;
+          continue;
+        }
+      }
+      const v = row[names[j]!];
+      const f = factors[j]!;
+      try {
+        if (isMissing(v)) throw invalidInput(f.name, `missing value for factor ${f.name}; give a value for every factor`);
+        if (f.kind === 'categorical') values[off + j] = levelIndex(f, v as string | number);
+        else {
           const num = asNumber(v);
           if (!Number.isFinite(num)) throw invalidInput(f.name, `${f.name} must be a finite number, got "${String(v)}"`);
-          return num;
-        });
+          const c = numericCoding[j];
+          values[off + j] = c ? (2 * (num - c.low)) / c.range - 1 : num;
+        }
+      } catch (e) {
+        const msg = e instanceof Error ? e.message : String(e);
+        throw invalidInput(`data[${i}].${f.name}`, `row ${i}: ${msg}`);
       }
-    } catch (e) {
-      const msg = e instanceof Error ? e.message : String(e);
-      const field = (e as { field?: string }).field ?? '?';
-      throw invalidInput(`data[${i}].${field}`, `row ${i}: ${msg}`);
     }
     rowIndex.push(i);
-    yList.push(yv);
-    points.push(Float64Array.from(pt));
-  });
-  const n = rowIndex.length;
+    yAll[n] = yv;
+    n++;
+  }
   if (n === 0) throw invalidInput('data', `no row has a value for the response "${response}"`);
+  values = values.subarray(0, n * k);
+  let pointViews: Float64Array[] | undefined;
+  const pointsOf = () => (pointViews ??= Array.from({ length: n }, (_, i) => values.subarray(i * k, (i + 1) * k)));
   const x = new Float64Array(n * p);
-  const rowBuf = new Float64Array(p);
-  for (let i = 0; i < n; i++) {
-    model.row(points[i]!, rowBuf);
-    for (let j = 0; j < p; j++) x[j * n + i] = rowBuf[j]!;
+  if (factors.every((f) => f.kind !== 'categorical')) {
+    // Column by column: each column is a product of factor powers.
+    let col = 0;
+    const factorIdx = new Map(names.map((nm, j) => [nm, j]));
+    for (const t of terms) {
+      const off = col * n;
+      x.fill(1, off, off + n);
+      for (const part of t.parts) {
+        const fj = factorIdx.get(part.name)!;
+        for (let i = 0; i < n; i++) {
+          const v = values[i * k + fj]!;
+          x[off + i] *= part.power === 1 ? v : part.power === 2 ? v * v : Math.pow(v, part.power);
+        }
+      }
+      col++;
+    }
+  } else {
+    const rowBuf = new Float64Array(p);
+    for (let i = 0; i < n; i++) {
+      model.row(values.subarray(i * k, (i + 1) * k), rowBuf);
+      for (let j = 0; j < p; j++) x[j * n + i] = rowBuf[j]!;
+    }
   }
 
   // Columns whose entries are products of two or more numeric values may be rounded.
@@ -188,7 +272,7 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
         for (const part of term.parts) {
           const fi = factorIndex.get(part.name)!;
           if (factors[fi]!.kind === 'categorical') continue;
-          const v = points[i]![fi]!;
+          const v = values[i * k + fi]!;
           if (v < 0 && part.power % 2 === 1) sign = -sign;
           for (let k = 0; k < part.power; k++) vals.push(v);
         }
@@ -199,5 +283,22 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     }
     return (low = out);
   };
-  return { factors, coding, intercept, terms, model, n, p, x, y: Float64Array.from(yList), points, rowIndex, excludedRows, lowParts };
+  return {
+    factors,
+    coding,
+    intercept,
+    terms,
+    model,
+    n,
+    p,
+    x,
+    y: yAll.slice(0, n),
+    get points() {
+      return pointsOf();
+    },
+    pointMatrix: values,
+    rowIndex,
+    excludedRows,
+    lowParts,
+  };
 }
