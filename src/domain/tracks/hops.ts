@@ -103,6 +103,8 @@ export interface TrackMetrics {
 }
 
 const MIN_FIT_SAMPLES = 5;
+/** Takeoff or landing may be extrapolated this many sampling intervals beyond the track (common practice, no source). */
+const EDGE_INTERVALS = 2;
 const MAX_LISTED = 5;
 
 function mean(values: number[]): number | null {
@@ -256,15 +258,18 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
   const tolerance = options.gravityTolerance ?? 0.1;
   for (let k = 0; k < flights.length; k++) {
     const { segment, fit } = flights[k]!;
-    if (segment.start === 0 || segment.end === n) {
-      edgeCut.push(`t ≈ ${s.t[segment.start]!.toFixed(3)} s`);
-      continue;
-    }
     const before = stanceGround(k > 0 ? flights[k - 1]!.segment.end : 0, segment.start);
     const after = stanceGround(segment.end, k + 1 < flights.length ? flights[k + 1]!.segment.start : n);
     const up = arcCrossings(fit, before);
     const down = arcCrossings(fit, after);
     if (!up || !down) { notBallistic.push(`t ≈ ${s.t[segment.start]!.toFixed(3)} s`); continue; }
+    // A flight whose takeoff or landing lies more than EDGE_INTERVALS sampling intervals outside the
+    // track was cut by its start or end: the extrapolated crossing would be a guess.
+    const edgeSlack = EDGE_INTERVALS * stats.medianInterval;
+    if (up[0] < s.t[0]! - edgeSlack || down[1] > s.t[n - 1]! + edgeSlack) {
+      edgeCut.push(`t ≈ ${s.t[segment.start]!.toFixed(3)} s`);
+      continue;
+    }
     const takeoffTime = up[0];
     const landingTime = down[1];
     const tauUp = takeoffTime - fit.t0;

@@ -104,6 +104,27 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
     expect(r.warnings.join(' ')).toMatch(/cut by the start or end/);
   });
 
+  it('counts a last hop whose landing falls just after the final sample', () => {
+    // Three 0.10 m hops at 200 Hz; the track ends a few milliseconds before the last landing.
+    const rows = ['t,x,y,z'];
+    const v = Math.sqrt(2 * 9.80665 * 0.1);
+    const flight = (2 * v) / 9.80665;
+    let start = 0;
+    for (let k = 0; k < 3; k++) {
+      for (let i = 0; i < 12; i++) rows.push(`${(start + i / 200).toFixed(4)},${(0.1 * k).toFixed(4)},0,0`);
+      start += 0.06;
+      for (let i = 0; i < Math.floor(flight * 200); i++) {
+        const s = i / 200;
+        rows.push(`${(start + s).toFixed(4)},${(0.1 * k + 0.25 * s).toFixed(4)},0,${Math.max(0, v * s - 4.903325 * s * s).toFixed(5)}`);
+      }
+      start += flight;
+    }
+    const r = trackMetrics(rows.join('\n'), { time: 't', x: 'x', y: 'y', z: 'z', lengthUnit: 'm', timeUnit: 's' });
+    expect(r.hops).toHaveLength(3);
+    expect(r.hops[2]!.apexHeight).toBeCloseTo(0.1, 3);
+    expect(r.hops[2]!.flightTime).toBeCloseTo(flight, 3);
+  });
+
   it('sorts samples given out of time order', () => {
     const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
     const [head, ...rows] = track.csv.trim().split('\n');
