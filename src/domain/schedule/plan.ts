@@ -162,6 +162,8 @@ export function assembleResult(p: Prepared, plan: RigPlan, frame?: ResultFrame):
 /** Place a campaign's runs onto rigs. Pure: the same request gives the same schedule. */
 export function planSchedule(request: ScheduleRequest): ScheduleResult {
   const p = prepare(request);
-  const plan = request.strategy === 'sequential' ? sequentialFill(p) : groupedPlan(p);
+  // Blocks pinned to days go in calendar order; otherwise the design's order.
+  const inDayOrder = p.units.slice().sort((a, b) => (a.window?.start ?? Infinity) - (b.window?.start ?? Infinity) || a.firstIndex - b.firstIndex);
+  const plan = request.strategy === 'sequential' ? sequentialFill(p, p.units.some((u) => u.window) ? inDayOrder : p.units) : groupedPlan(p);
   return assembleResult(p, plan);
 }

@@ -4,6 +4,7 @@ import { planSchedule, type ScheduleRequest } from '@/domain/schedule';
 import { prepare } from '@/domain/schedule/prepare';
 import { emptyRigState, placementsOf, placeUnit, type RigState } from '@/domain/schedule/rig-timeline';
 import { requestArbitrary, scheduleViolations } from './invariants';
+import { benchmarkRequest } from '../../../bench/cases/schedule';
 
 function permutations<T>(xs: T[]): T[][] {
   if (xs.length <= 1) return [xs];
@@ -61,6 +62,14 @@ const tinyRequest = fc
   .filter((req) => prepare(req).units.length <= 5);
 
 describe('grouped solver', () => {
+  it('keeps every invariant on the benchmark campaign (500 runs, 5 rigs, Berlin hours)', () => {
+    const req = benchmarkRequest();
+    const res = planSchedule(req);
+    expect(res.unscheduled).toEqual([]);
+    expect(res.changeovers).toBe(res.lowerBound.changeovers);
+    expect(scheduleViolations(req, res)).toEqual([]);
+  });
+
   it('matches exhaustive search on tiny instances (unscheduled runs, changeovers, finish)', () => {
     fc.assert(
       fc.property(tinyRequest, (req) => {
@@ -139,6 +148,10 @@ describe('grouped solver', () => {
     // One swap per day at most: grass then ice on Monday, continue on ice on Tuesday, then grass.
     expect(res.changeovers).toBe(2);
     expect(scheduleViolations(req, res)).toEqual([]);
+    // The sequential fill keeps blocks on their days too (Tuesday's runs come first in the design).
+    const seq = planSchedule({ ...req, strategy: 'sequential' });
+    expect(seq.unscheduled).toEqual([]);
+    expect(scheduleViolations(req, seq)).toEqual([]);
   });
 
   it('reports a block that no longer fits on its day', () => {
