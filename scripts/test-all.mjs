@@ -4,9 +4,11 @@
 //   2. unit and reference tests (vitest.config.ts)
 //   3. integration tests on a fresh SQLite file, then on PostgreSQL
 //   4. production build and browser tests (headless chromium through playwright-core)
-// The last line printed is `N passed, M failed` (test counts over all vitest runs); CI reads it.
+// The last line printed is `N passed, M failed` (test counts over all vitest runs; a failed step that
+// counts no tests, such as the type check or a required step that had to be skipped, adds one to M so
+// that line never reads "0 failed" when the run failed); CI reads it.
 // Environment: SALTUS_TEST_PG_URL (use this PostgreSQL database instead of starting one),
-// SALTUS_REQUIRE_ALL=1 (a skipped step is a failure; CI sets it),
+// SALTUS_REQUIRE_ALL=1 (a skipped step is a failure; CI sets it), SALTUS_CHROMIUM (default /usr/bin/chromium),
 // SALTUS_TEST_ONLY=static,unit,integration,e2e (run only these steps; for local use).
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
@@ -21,6 +23,7 @@ const requireAll = process.env.SALTUS_REQUIRE_ALL === '1';
 const only = process.env.SALTUS_TEST_ONLY ? new Set(process.env.SALTUS_TEST_ONLY.split(',').map((s) => s.trim())) : null;
 const bin = (name) => path.join(root, 'node_modules', '.bin', name);
 const scratch = mkdtempSync(path.join(os.tmpdir(), 'saltus-test-'));
+const chromiumPath = process.env.SALTUS_CHROMIUM ?? '/usr/bin/chromium';
 
 const totals = { passed: 0, failed: 0 };
 const summary = []; // { step, status: 'ok' | 'FAILED' | 'SKIPPED', seconds, note }
@@ -87,6 +90,7 @@ function finish() {
     console.log(`${s.status.padEnd(8)} ${s.step.padEnd(34)} ${String(s.seconds).padStart(7)} s${s.note ? `  ${s.note}` : ''}`);
   }
   const failedStep = summary.some((s) => s.status === 'FAILED');
+  if (failedStep && totals.failed === 0) totals.failed = 1;
   cleanup();
   console.log(`${totals.passed} passed, ${totals.failed} failed`);
   process.exit(failedStep || totals.failed > 0 ? 1 : 0);
@@ -259,7 +263,7 @@ if (wants('integration')) {
 
 if (wants('e2e')) {
   const e2eStep = 'Browser tests';
-  if (!existsSync('/usr/bin/chromium')) {
+  if (!existsSync(chromiumPath)) {
     skip(e2eStep, 'SKIPPED browser tests: install the Debian package chromium');
   } else if (!appHasRoutes()) {
     skip(e2eStep, 'SKIPPED browser tests: src/app has no pages or routes yet');
