@@ -78,3 +78,21 @@ export function trackMetricsFromBytes(bytes: Uint8Array, options: TrackMetricsOp
 export function trackMetrics(csv: string, options: TrackMetricsOptions): TrackMetrics {
   return trackMetricsFromBytes(new TextEncoder().encode(csv), options);
 }
+
+/** Trial readings taken from a track, in the names the rig log and `checkReadings` use (SI units). */
+export interface TrackReadings {
+  /** Highest apex of the track's hops, m (null without hops). */
+  apexHeightM: number | null;
+  hopsCompleted: number;
+  /** Horizontal distance travelled over the hop cycles, m. */
+  distanceM: number;
+}
+
+/** The readings a trial takes from its track: highest apex, hops completed, distance travelled. */
+export function readingsFromTrack(metrics: TrackMetrics): TrackReadings {
+  return {
+    apexHeightM: metrics.summary.maxApexHeight,
+    hopsCompleted: metrics.summary.hopCount,
+    distanceM: metrics.summary.totalDistance,
+  };
+}

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { hopMetrics, trackMetrics } from '@/domain/tracks';
+import { hopMetrics, readingsFromTrack, trackMetrics } from '@/domain/tracks';
+import { checkReadings } from '@/domain/metrics/plausibility';
 import { flightTimeForApex, takeoffSpeedForApex } from '@/domain/metrics/ballistics';
 import { syntheticTrack, type SyntheticHop } from './synthetic';
 
@@ -56,6 +57,15 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
     expect(r.summary.costOfTransport).toBeCloseTo(0.6 / (0.0015 * 9.80665 * r.summary.totalDistance), 8);
     expect(r.hops[0]!.costOfTransport).toBeCloseTo(0.2 / (0.0015 * 9.80665 * r.hops[0]!.cycleDistance), 8);
     expect(r.summary.meanLandingError).not.toBeNull();
+  });
+
+  it('hands the trial its readings (highest apex, hops, distance), which pass the plausibility checks', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
+    const readings = readingsFromTrack(trackMetrics(track.csv, mapping));
+    expect(readings.hopsCompleted).toBe(3);
+    expect(readings.apexHeightM).toBeCloseTo(0.2, 4);
+    expect(readings.distanceM).toBeCloseTo(track.truth.reduce((a, h) => a + h.hopLength, 0), 4);
+    expect(checkReadings({ ...readings, energyJ: 0.5, passed: true }, { now: '2026-03-01T12:00:00Z', robotMassKg: 0.001, robotHeightM: 0.02 })).toEqual({ errors: [], warnings: [] });
   });
 
   it('reads millimetres and milliseconds and answers in SI', () => {
