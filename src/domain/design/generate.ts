@@ -14,6 +14,9 @@ import {
 import { seededRandom } from '../random';
 import { boxBehnkenDesign } from './box-behnken';
 import { definitiveScreeningDesign } from './definitive-screening';
+import { maximinLatinHypercube } from './latin-hypercube';
+import { codedRegion } from './region';
+import { sobolPoints } from './sobol';
 import { centralCompositeDesign } from './central-composite';
 import { designDiagnostics } from './diagnostics';
 import { fullFactorialDesign } from './full-factorial';
@@ -201,11 +204,63 @@ function construct(
     }
     case 'definitive-screening':
       return withCentres(factors, replicate(definitiveScreeningDesign(factors, { runs: spec.runs }), spec.replicates), spec.centerPoints);
+    case 'latin-hypercube':
+      return latinHypercubeRuns(spec);
+    case 'sobol':
+      return sobolRuns(spec);
     case 'box-behnken':
       return boxBehnkenDesign(factors, { centerPoints: spec.centerPoints, replicates: spec.replicates });
     default:
       throw new DomainError('unsupported', `method "${spec.method}" is not available yet`, 'method');
   }
+}
+
+/** Default runs of a space-filling design: 10 per factor (common practice, no source). */
+function spaceFillingRuns(spec: DesignSpec): number {
+  const n = spec.runs ?? 10 * spec.factors.length;
+  if (!Number.isInteger(n) || n < 2) throw invalidInput('runs', 'runs must be a whole number of at least 2');
+  return n;
+}
+
+/** A unit-interval coordinate u ∈ [0, 1] as the factor's coded value (discrete values snapped). */
+function unitToCoded(f: Factor, u: number): number {
+  if (f.kind === 'categorical') return Math.min(f.levels.length - 1, Math.floor(u * f.levels.length));
+  const c = -1 + 2 * u;
+  if (f.kind === 'discrete') return codePoint([f], decodePoint([f], [c]))[0]!;
+  return c;
+}
+
+function latinHypercubeRuns(spec: DesignSpec): CodedRun[] {
+  spec.factors.forEach((f, i) => {
+    if (f.kind === 'categorical') {
+      throw new DomainError('unsupported', `a Latin hypercube needs numeric factors; ${f.name} is categorical (use Sobol points or an optimal design)`, `factors[${i}].kind`);
+    }
+  });
+  const n = spaceFillingRuns(spec);
+  // A stream of its own, so the run-order shuffle does not change the design.
+  const rng = seededRandom((spec.seed ?? DEFAULT_SEED) * 7919 + 17);
+  return maximinLatinHypercube(n, spec.factors.length, rng).map((row) => ({
+    coded: row.map((lv, j) => unitToCoded(spec.factors[j]!, lv / (n - 1))),
+  }));
+}
+
+function sobolRuns(spec: DesignSpec): CodedRun[] {
+  const n = spaceFillingRuns(spec);
+  const region = codedRegion(space(spec));
+  // The scramble has a stream of its own, so the run-order shuffle does not change the points.
+  // Constrained regions keep the feasible points in sequence order until n are found.
+  let batch = n;
+  for (let attempt = 0; attempt < 8; attempt++) {
+    const points = sobolPoints(Math.min(batch, 2 ** 20), spec.factors.length, seededRandom((spec.seed ?? DEFAULT_SEED) * 7919 + 29));
+    const runs: CodedRun[] = [];
+    for (const u of points) {
+      const coded = u.map((v, j) => unitToCoded(spec.factors[j]!, v));
+      if (region.feasible(coded)) runs.push({ coded });
+      if (runs.length === n) return runs;
+    }
+    batch *= 4;
+  }
+  throw new DomainError('infeasible', 'too few Sobol points fall inside the constraints; check them against the factor ranges', 'constraints');
 }
 
 /** Fail when a classical construction puts runs outside the constraints; name how many and which. */

@@ -17,3 +17,5 @@ export { fastModel, type FastModel } from './model-rows';
 export { noncentralFCdf, fTestPower } from './power';
 export { varianceInflation, columnCorrelations, fractionOfDesignSpace, termPower, FDS_FRACTIONS, type DiagnosticsOptions } from './diagnostics';
 export * from './definitive-screening';
+export * from './latin-hypercube';
+export * from './sobol';
