@@ -26,6 +26,8 @@ import type { Suggestion, SuggestionRequest, SuggestionResult, SurrogateSummary 
 
 const STRATEGIES = ['improve', 'explore', 'refine', 'confirm'] as const;
 const MAX_COUNT = 100;
+/** The fit costs O(n³) per likelihood evaluation: beyond this the request would take minutes. */
+export const MAX_FITTED_TRIALS = 1000;
 /** Default lowest acceptable probability that a suggested trial does not fail. */
 export const DEFAULT_FEASIBILITY_THRESHOLD = 0.5;
 /** Default rig minutes per trial, used to weigh a change cost against the trials of a batch (an assumption; state your own). */
@@ -111,6 +113,9 @@ export function prepareData(request: SuggestionRequest): PreparedData {
     inputs.push(coded);
     y.push(value);
   });
+  if (inputs.length > MAX_FITTED_TRIALS) {
+    throw invalidInput('data', `at most ${MAX_FITTED_TRIALS} trials with a response can be modelled in one request (got ${inputs.length}); send the most relevant ones`);
+  }
   if (inputs.length < 2) {
     throw invalidInput('data', 'at least two trials with a measured response are needed to fit a surrogate; run a starting design first');
   }
@@ -298,6 +303,8 @@ interface Chosen {
   acquisition: number;
   feasibility: number;
   replicateOf: number;
+  /** log of `acquisition`, finite where the acquisition underflows (improve only). */
+  logAcquisition?: number;
   /** Expected improvement (response units) at the moment of choice, before the feasibility weight. */
   improvement?: number;
   /** Incumbent (response units) when chosen. */
@@ -359,6 +366,7 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: C
     chosenList.push({
       coded: pick.coded,
       acquisition: improvement * p,
+      logAcquisition: logExpectedImprovement(g, sd, best) + Math.log(model.yScale) + Math.log(Math.max(p, 1e-300)),
       feasibility: p,
       replicateOf: pick.replicateOf,
       improvement,
@@ -476,24 +484,33 @@ function improveStrategy(ctx: Context): Suggestion[] {
     const s = logExpectedImprovement(ctx.sign * meanStandardised(ctx.model, c), Math.sqrt(base.variance[i]!), incumbent);
     bestByKey.set(keyOf[i]!, Math.max(bestByKey.get(keyOf[i]!) ?? -Infinity, s));
   });
-  const alternatives = [...bestByKey.entries()].filter(([k]) => k !== currentKey).sort((a, b) => b[1] - a[1]).slice(0, 4).map(([k]) => k);
-  interface Plan { kind: 'stay' | 'switch' | 'free'; chosen: Chosen[]; minutes: number; rate: number }
+  // Whole-batch moves to another level make sense for levels (categorical, discrete), not for continuous values.
+  const levelled = costly.every((k) => factors[k]!.kind !== 'continuous');
+  const alternatives = levelled ? [...bestByKey.entries()].filter(([k]) => k !== currentKey).sort((a, b) => b[1] - a[1]).slice(0, 4).map(([k]) => k) : [];
+  interface Plan { kind: 'stay' | 'switch' | 'free'; chosen: Chosen[]; minutes: number; rate: number; logRate: number }
   const plans: Plan[] = [];
   const runPlan = (kind: Plan['kind'], allowed: Uint8Array, fixed: number[]) => {
     if (!allowed.some((v) => v === 1)) return;
     const chosen = groupByLevels(selectImprove(ctx, request.count, allowed, base, fixed), costly, current);
     if (chosen.length === 0) return;
     const gain = chosen.reduce((s, c) => s + c.acquisition, 0);
+    // log Σ acquisition, stable where EI underflows.
+    const logs = chosen.map((c) => c.logAcquisition ?? Math.log(c.acquisition));
+    const top = Math.max(...logs);
+    const logGain = top === -Infinity ? -Infinity : top + Math.log(logs.reduce((s, l) => s + Math.exp(l - top), 0));
     const minutes = chosen.length * trialMinutes + changeMinutes(ctx, current, chosen.map((c) => c.coded), costly);
-    plans.push({ kind, chosen, minutes, rate: gain / minutes });
+    plans.push({ kind, chosen, minutes, rate: gain / minutes, logRate: logGain - Math.log(minutes) });
   };
   runPlan('stay', ctx.eligible.map((e, i) => (e && keyOf[i] === currentKey ? 1 : 0)), costly);
   for (const key of alternatives) runPlan('switch', ctx.eligible.map((e, i) => (e && keyOf[i] === key ? 1 : 0)), costly);
   runPlan('free', ctx.eligible, []);
   if (plans.length === 0) return [];
+  // Plans that fill the batch come first; among them the most expected improvement per minute.
+  const full = plans.filter((p) => p.chosen.length === request.count);
+  const candidatesPlans = full.length > 0 ? full : plans;
   const stay = plans.find((p) => p.kind === 'stay');
-  let best = plans[0]!;
-  for (const p of plans) if (p.rate > best.rate * (1 + 1e-9) || (p.rate >= best.rate * (1 - 1e-9) && p.minutes < best.minutes)) best = p;
+  let best = candidatesPlans[0]!;
+  for (const p of candidatesPlans) if (p.logRate > best.logRate + 1e-9 || (p.logRate >= best.logRate - 1e-9 && p.minutes < best.minutes)) best = p;
   const perHour = (r: number) => formatNumber(r * 60);
   const others = plans.filter((p) => p !== best);
   const bestOther = others.length ? others.reduce((a, b) => (b.rate > a.rate ? b : a)) : null;
