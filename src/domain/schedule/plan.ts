@@ -165,5 +165,10 @@ export function planSchedule(request: ScheduleRequest): ScheduleResult {
   // Blocks pinned to days go in calendar order; otherwise the design's order.
   const inDayOrder = p.units.slice().sort((a, b) => (a.window?.start ?? Infinity) - (b.window?.start ?? Infinity) || a.firstIndex - b.firstIndex);
   const plan = request.strategy === 'sequential' ? sequentialFill(p, p.units.some((u) => u.window) ? inDayOrder : p.units) : groupedPlan(p);
+  if (request.strategy !== 'sequential' && p.changeoverFactors.some((f) => f.ms > 0) && p.units.length > 1) {
+    plan.notes.push(
+      'Whole plots were grouped by their levels of the hard-to-change factors to save changeovers; the runs inside every whole plot keep the design’s order.',
+    );
+  }
   return assembleResult(p, plan);
 }
