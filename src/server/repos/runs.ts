@@ -20,8 +20,12 @@ export function campaignDesignSpec(factors: DesignSpec['factors'], input: Campai
     centerPoints: input.centerPoints,
     replicates: input.replicates,
     runs: input.runs,
-    alpha: input.method === 'central-composite' ? 'face-centred' : undefined,
+    alpha: input.alpha ?? (input.method === 'central-composite' ? 'face-centred' : undefined),
     seed: input.seed ?? 1,
+    ...(input.criterion !== undefined ? { criterion: input.criterion } : {}),
+    ...(input.resolution !== undefined ? { resolution: input.resolution } : {}),
+    ...(input.wholePlots !== undefined ? { wholePlots: input.wholePlots } : {}),
+    ...(input.blocks !== undefined ? { blocks: input.blocks } : {}),
   };
 }
 

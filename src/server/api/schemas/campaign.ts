@@ -139,6 +139,12 @@ export const campaignDesignSchema = z.object({
   replicates: z.number().int().min(1).max(10).optional(),
   runs: z.number().int().min(2).max(2000).optional(),
   seed: z.number().int().min(0).max(2 ** 31 - 1).optional(),
+  /** Optional settings the design engine accepts (planner page); absent keeps each method's default. */
+  criterion: z.enum(['D', 'I'], { error: 'criterion must be "D" or "I"' }).optional(),
+  alpha: z.union([z.enum(['rotatable', 'orthogonal', 'face-centred']), z.number().positive().max(10)], { error: 'alpha must be rotatable, orthogonal, face-centred or a positive number' }).optional(),
+  resolution: z.number().int().min(3).max(8).optional(),
+  wholePlots: z.number().int().min(2).max(500).optional(),
+  blocks: z.number().int().min(1).max(50).optional(),
 });
 
 export const scheduleCreateSchema = z.object({

@@ -1,0 +1,6 @@
+import { route } from '@/server/api/http';
+import { rigCalendarHandler } from '@/server/api/plan-handlers';
+
+export const runtime = 'nodejs';
+export const dynamic = 'force-dynamic';
+export const GET = route(rigCalendarHandler);
