@@ -3,7 +3,8 @@ import { DomainError } from '../errors';
 import { parseTerm } from '../factors';
 import { canonicalAnalysis, quadraticForm, stationaryPoint } from './response-surface';
 import { fitLinearModel, type LinearModelFit } from './linear-model';
-import { buildModelFrame } from './model-frame';
+import { buildModelFrame, type ModelFrame } from './model-frame';
+import { fitLogisticModel, type LogisticFit } from './logistic';
 import { regressionDiagnostics } from './diagnostics';
 import type { AnalysisRequest, AnalysisResult } from './types';
 
@@ -52,12 +53,48 @@ export function resultOfLinearFit(request: AnalysisRequest, lm: LinearModelFit):
 /** Fit the requested model and answer with coefficients, ANOVA and fit statistics. */
 export function analyze(request: AnalysisRequest): AnalysisResult {
   const family = request.family ?? 'gaussian';
-  if (family !== 'gaussian') {
-    throw new DomainError('unsupported', `family "${family}" is not available yet; use "gaussian"`, 'family');
+  if (family !== 'gaussian' && family !== 'binomial') {
+    throw new DomainError('unsupported', `family "${String(family)}" is not available; use "gaussian" or "binomial"`, 'family');
   }
   const frame = buildModelFrame(request);
+  if (family === 'binomial') return resultOfLogisticFit(request, frame, fitLogisticModel(frame));
   const result = resultOfLinearFit(request, fitLinearModel(frame));
   return withSurface(result);
+}
+
+/** Result of a pass/fail (binomial) analysis. */
+function resultOfLogisticFit(request: AnalysisRequest, frame: ModelFrame, fit: LogisticFit): AnalysisResult {
+  return {
+    family: 'binomial',
+    response: request.response,
+    coding: frame.coding,
+    factors: frame.factors,
+    n: frame.n,
+    excludedRows: frame.excludedRows,
+    intercept: frame.intercept,
+    terms: frame.terms.filter((t) => t.parts.length > 0).map((t) => t.label),
+    coefficients: fit.coefficients,
+    aliased: fit.aliased,
+    rank: fit.rank,
+    anova: fit.anova,
+    // McFadden's pseudo R² (1 − deviance / null deviance)
+    rSquared: fit.nullDeviance > 0 ? 1 - fit.deviance / fit.nullDeviance : NaN,
+    adjustedRSquared: NaN,
+    residualStdError: null,
+    residualDf: fit.residualDf,
+    logistic: {
+      deviance: fit.deviance,
+      nullDeviance: fit.nullDeviance,
+      aic: fit.aic,
+      iterations: fit.iterations,
+      converged: fit.converged,
+      ...(fit.separation ? { separation: fit.separation } : {}),
+    },
+    covariance: fit.covariance,
+    fitted: Array.from(fit.fitted),
+    residuals: Array.from(fit.residuals),
+    observed: Array.from(frame.y),
+  };
 }
 
 /** Add the stationary point and canonical analysis when the model has squared numeric terms. */

@@ -46,3 +46,4 @@ export {
   type DesirabilityValue,
   type MaximizeDesirabilityOptions,
 } from './desirability';
+export { fitLogisticModel, type LogisticFit, type Separation } from './logistic';

@@ -85,6 +85,16 @@ export interface AnalysisResult {
   diagnostics?: import('./diagnostics').Diagnostics;
   /** Covariance matrix of the estimates (σ̂²·(XᵀX)⁻¹), in coefficient order; absent without residual df. */
   covariance?: number[][];
+  /** For family "binomial": deviances, AIC, convergence and any separation found. In the ANOVA of a
+   * binomial fit, `ss` holds deviance (likelihood-ratio χ² for the model and term rows) and `p` its χ² p-value. */
+  logistic?: {
+    deviance: number;
+    nullDeviance: number;
+    aic: number;
+    iterations: number;
+    converged: boolean;
+    separation?: import('./logistic').Separation;
+  };
   /** For models with squared numeric terms: the stationary point and canonical analysis. */
   stationaryPoint?: import('./response-surface').StationaryPoint | null;
   canonical?: import('./response-surface').CanonicalAnalysis;
