@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { planSchedule, type ScheduleRequest } from '@/domain/schedule';
+import { clockInZone, planSchedule, workingAvailability, type ScheduleRequest } from '@/domain/schedule';
 import { requestArbitrary, scheduleViolations } from './invariants';
 
 const day = (d: string, from: string, to: string) => ({ start: `${d}T${from}:00.000Z`, end: `${d}T${to}:00.000Z` });
@@ -135,5 +135,31 @@ describe('planSchedule invariants (property)', () => {
       }),
       { numRuns: 120, seed: 20260302 },
     );
+  });
+});
+
+describe('planSchedule edge cases', () => {
+  it('says when hours suffice in total but come in pieces too short', () => {
+    const req: ScheduleRequest = {
+      runs: [1, 2, 3].map((i) => ({ id: `r${i}`, values: {}, durationMinutes: 40 })),
+      rigs: [{ name: 'A', available: [day('2026-03-02', '08:00', '09:00'), day('2026-03-03', '08:00', '09:00')] }],
+    };
+    const res = planSchedule(req);
+    expect(res.assignments).toHaveLength(2);
+    expect(res.infeasibility).toEqual([expect.objectContaining({ constraint: 'fragmentation', requiredMinutes: 40, availableMinutes: 40 })]);
+  });
+
+  it('keeps trials on the local working hours across the New York spring change', () => {
+    const available = workingAvailability({ workdays: [1, 2, 3, 4, 5], startTime: '08:00', endTime: '12:00', timeZone: 'America/New_York' }, '2026-03-05', 6);
+    const req: ScheduleRequest = {
+      runs: Array.from({ length: 12 }, (_, i) => ({ id: `r${i}`, values: {}, durationMinutes: 60 })),
+      rigs: [{ name: 'A', available }],
+      timeZone: 'America/New_York',
+    };
+    const res = planSchedule(req);
+    expect(res.unscheduled).toEqual([]);
+    expect(res.assignments.map((a) => clockInZone(Date.parse(a.start), 'America/New_York'))).toEqual(Array.from({ length: 12 }, (_, i) => `${String(8 + (i % 4)).padStart(2, '0')}:00`));
+    // Thursday, Friday, then Monday 9 March after the change: 12:00Z instead of 13:00Z.
+    expect(res.assignments[8]!.start).toBe('2026-03-09T12:00:00.000Z');
   });
 });
