@@ -112,3 +112,23 @@ describe('suggestTrials, strategy "improve"', () => {
     expect(() => suggestTrials({ ...base, constraints: [{ terms: { payload: 1 }, min: 5 }] })).toThrow(/no point of the factor space/);
   });
 });
+
+describe('small and degenerate campaigns', () => {
+  const surfaceOnly: Factor[] = [{ name: 'surface', kind: 'categorical', levels: ['turf', 'glass'] }];
+  it('a space with fewer settings than the batch: every strategy answers without error, new trials distinct', () => {
+    const data = [{ surface: 'turf', y: 1 }, { surface: 'glass', y: 2 }, { surface: 'turf', y: 1.2 }];
+    for (const strategy of ['improve', 'explore', 'refine', 'confirm'] as const) {
+      const r = suggestTrials({ factors: surfaceOnly, data, response: 'y', goal: 'maximize', count: 4, strategy });
+      expect(r.suggestions.length).toBeGreaterThan(0);
+      expect(r.suggestions.length).toBeLessThanOrEqual(4);
+    }
+  });
+
+  it('a constant response and replicated settings with different responses still fit', () => {
+    expect(suggestTrials({ factors: surfaceOnly, data: [{ surface: 'turf', y: 1 }, { surface: 'glass', y: 1 }], response: 'y', goal: 'maximize', count: 1 }).suggestions).toHaveLength(1);
+    const one: Factor[] = [{ name: 'x', kind: 'continuous', low: 0, high: 1 }];
+    const r = suggestTrials({ factors: one, data: [{ x: 0.5, y: 1 }, { x: 0.5, y: 3 }, { x: 0.5, y: 2 }], response: 'y', goal: 'minimize', count: 2 });
+    expect(r.suggestions).toHaveLength(2);
+    expect(r.model.noiseVariance).toBeGreaterThan(0.1);
+  });
+});
