@@ -1,11 +1,18 @@
 import { defineConfig } from 'vitest/config';
+import { rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 // Run by hand without a database named, the suite uses a throw-away SQLite file, never data/saltus.db.
-const defaultEnv: Record<string, string> =
-  process.env.DATABASE_URL || process.env.SALTUS_SQLITE_FILE ? {} : { SALTUS_SQLITE_FILE: path.join(os.tmpdir(), `saltus-integration-${process.pid}.db`) };
+const defaultEnv: Record<string, string> = {};
+if (!process.env.DATABASE_URL && !process.env.SALTUS_SQLITE_FILE) {
+  const file = path.join(os.tmpdir(), `saltus-integration-${process.pid}.db`);
+  defaultEnv.SALTUS_SQLITE_FILE = file;
+  process.once('exit', () => {
+    for (const suffix of ['', '-wal', '-shm', '-journal']) rmSync(file + suffix, { force: true });
+  });
+}
 
 // Integration tests against a real database: the SQLite file named by SALTUS_SQLITE_FILE, or the
 // PostgreSQL database of DATABASE_URL (scripts/test-all.mjs runs this suite once on each). The files
