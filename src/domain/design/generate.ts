@@ -69,6 +69,12 @@ function checkSpec(spec: DesignSpec): void {
   if (spec.model !== undefined && !MODELS.includes(spec.model)) throw invalidInput('model', `model must be one of: ${MODELS.join(', ')}`);
   if (spec.seed !== undefined && !Number.isInteger(spec.seed)) throw invalidInput('seed', 'seed must be a whole number');
   validateSpace({ factors: spec.factors, constraints: spec.constraints, disallowed: spec.disallowed });
+  if (spec.blocks !== undefined && spec.blocks > 1 && spec.method !== 'optimal' && spec.method !== 'central-composite') {
+    throw new DomainError('unsupported', `blocks apply to optimal and central composite designs; ${spec.method} designs here are not blocked`, 'blocks');
+  }
+  if (spec.wholePlots !== undefined && spec.method !== 'optimal') {
+    throw new DomainError('unsupported', 'whole plots (split-plot designs) are built by the optimal method; set method to "optimal"', 'wholePlots');
+  }
 }
 
 function space(spec: DesignSpec): FactorSpace {

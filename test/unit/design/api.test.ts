@@ -58,3 +58,52 @@ describe('POST /api/v1/designs', () => {
     expect(res.status).toBe(422);
   });
 });
+
+describe('POST /api/v1/designs: optimal and split-plot requests', () => {
+  it('builds a split-plot optimal design with hard-to-change surface as whole-plot factor', async () => {
+    const res = await post({
+      factors: [
+        { name: 'surface', kind: 'categorical', levels: ['turf', 'ice', 'glass', 'soil'], hardToChange: true },
+        { name: 'payload', kind: 'continuous', low: 0, high: 2, unit: 'g' },
+        { name: 'gain', kind: 'continuous', low: 10, high: 30 },
+      ],
+      method: 'optimal',
+      model: 'main-effects',
+      runs: 12,
+      wholePlots: 4,
+      starts: 3,
+      seed: 9,
+      constraints: [{ terms: { payload: 1, gain: 0.02 }, max: 2.4 }],
+      existingRuns: [{ surface: 'ice', payload: 1, gain: 20 }],
+    });
+    expect(res.status).toBe(200);
+    const body = (await res.json()) as { runs: { values: Record<string, number | string>; wholePlot?: number; existing?: boolean }[] };
+    expect(body.runs).toHaveLength(13);
+    expect(body.runs[0]!.existing).toBe(true);
+    for (const r of body.runs) expect((r.values.payload as number) + 0.02 * (r.values.gain as number)).toBeLessThanOrEqual(2.4 + 1e-9);
+    expect(new Set(body.runs.slice(1).map((r) => r.wholePlot))).toEqual(new Set([1, 2, 3, 4]));
+  });
+
+  it('answers 400 naming blocks or whole plots on methods that do not take them, and 422 naming inestimable terms', async () => {
+    const blocked = await post({ factors, method: 'full-factorial', blocks: 2 });
+    expect(blocked.status).toBe(400);
+    expect(((await blocked.json()) as { error: { field: string } }).error.field).toBe('blocks');
+    const plots = await post({ factors, method: 'full-factorial', wholePlots: 2 });
+    expect(((await plots.json()) as { error: { field: string } }).error.field).toBe('wholePlots');
+    const singular = await post({
+      factors: [
+        { name: 'a', kind: 'continuous', low: 0, high: 1 },
+        { name: 'b', kind: 'continuous', low: 0, high: 1 },
+        { name: 'c', kind: 'continuous', low: 0, high: 1 },
+        { name: 'd', kind: 'continuous', low: 0, high: 1 },
+      ],
+      method: 'fractional-factorial',
+      resolution: 4,
+      model: 'interactions',
+    });
+    expect(singular.status).toBe(422);
+    const body = (await singular.json()) as { error: { code: string; details: { inestimable: string[] } } };
+    expect(body.error.code).toBe('singular_design');
+    expect(body.error.details.inestimable.length).toBeGreaterThan(0);
+  });
+});

@@ -188,6 +188,18 @@ describe('augmentation, progress and stopping', () => {
     expect(all).toEqual([0.25, 0.5, 0.75, 1]);
   });
 
+  it('puts runs already made in a block of their own when the new runs are blocked', () => {
+    const existingRuns = [
+      { payload: 0, gain: 10 },
+      { payload: 2, gain: 30 },
+      { payload: 1, gain: 20 },
+    ];
+    const d = augmentDesign({ factors: two, method: 'optimal', model: 'main-effects', existingRuns, runs: 6, blocks: 2, seed: 2, starts: 3 });
+    expect(d.runs.slice(0, 3).every((r) => r.existing && r.block === undefined)).toBe(true);
+    expect(d.runs.slice(3).map((r) => r.block)).toEqual([1, 1, 1, 2, 2, 2]);
+    expect(d.diagnostics.columns.filter((c) => c.startsWith('Block['))).toHaveLength(2);
+  });
+
   it('refuses too few runs for the model, naming runs', () => {
     expect(() => generateDesign({ factors: two, method: 'optimal', model: 'quadratic', runs: 4 })).toThrow(/at least 6 runs/);
   });
