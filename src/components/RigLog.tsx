@@ -1,12 +1,15 @@
 'use client';
 /**
  * The rig log on a tablet: the rig's queue in planned order, start a trial, enter readings with units,
- * finish. Large touch targets; every refusal names the field and the fix.
+ * finish. Large touch targets; every refusal names the field and the fix. Start and finish make ONE
+ * entry in the tablet's IndexedDB outbox (rig-queue.ts) with a key made here; it is sent at once when
+ * the network is up, and replayed on reconnect otherwise, so nothing logged at the bench is lost.
  */
 import { useRouter } from 'next/navigation';
-import { useState } from 'react';
+import { useCallback, useEffect, useRef, useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
+import { deleteEntry, entriesOf, newEntryKey, retryDelayMs, saveEntry, sendEntry, type LogBody, type QueueEntry } from './rig-queue';
 
 export interface QueueItem {
   runId: string;
@@ -26,8 +29,14 @@ export interface RigLogProps {
   queue: QueueItem[];
 }
 
-function newKey(): string {
-  return typeof crypto !== 'undefined' && 'randomUUID' in crypto ? crypto.randomUUID() : `k-${Date.now()}-${Math.random().toString(36).slice(2)}`;
+interface ActiveTrial {
+  runId: string;
+  runNumber: number;
+  startedAt: string;
+  /** Key of this trial's log entry (kept when a refused entry is corrected and sent again). */
+  key: string;
+  /** A trial started on the server by an earlier version of this page: finished through its own route. */
+  trialId?: string;
 }
 
 function fmtValues(v: Record<string, string | number>): string {
@@ -36,10 +45,22 @@ function fmtValues(v: Record<string, string | number>): string {
     .join(' · ');
 }
 
+function fmtObservations(o: Record<string, number>): string {
+  const parts = Object.entries(o).map(([k, v]) => `${k} ${v}`);
+  return parts.length ? parts.join(', ') : 'no readings';
+}
+
+const STATE_LABEL: Record<QueueEntry['state'], string> = { sent: 'sent', waiting: 'waiting', conflict: 'conflict', refused: 'refused' };
+
+/** Sent entries are shown for a day, then dropped from the tablet (the server holds them). */
+const KEEP_SENT_MS = 24 * 3600 * 1000;
+
 export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }: RigLogProps) {
   const router = useRouter();
   const running = queue.find((q) => q.state === 'running' && q.trialId);
-  const [active, setActive] = useState<{ trialId: string; runNumber: number } | null>(running ? { trialId: running.trialId!, runNumber: running.runNumber } : null);
+  const [active, setActive] = useState<ActiveTrial | null>(
+    running ? { runId: running.runId, runNumber: running.runNumber, startedAt: new Date().toISOString(), key: newEntryKey(), trialId: running.trialId! } : null,
+  );
   const [robotId, setRobotId] = useState(robots[0]?.id ?? '');
   const [operator, setOperator] = useState('');
   const [readings, setReadings] = useState<Record<string, string>>({});
@@ -50,24 +71,118 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
   const [message, setMessage] = useState<string | null>(null);
   const [warnings, setWarnings] = useState<{ field: string; message: string }[]>([]);
   const [busy, setBusy] = useState(false);
+  const [entries, setEntries] = useState<QueueEntry[]>([]);
+  const sending = useRef(false);
+  const retryTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
+  const retryAttempt = useRef(0);
+  const flushRef = useRef<() => Promise<void>>(async () => undefined);
 
-  async function start(item: QueueItem) {
-    setError(null);
-    setMessage(null);
-    setBusy(true);
-    const res = await postJson<{ trial: { id: string } }>(
-      `/api/v1/campaigns/${campaignId}/trials`,
-      { runId: item.runId, rigId, robotId: robotId || undefined, operator },
-      { 'Idempotency-Key': newKey() },
-    );
-    setBusy(false);
-    if (!res.ok) return setError(res.error);
-    setActive({ trialId: res.data.trial.id, runNumber: item.runNumber });
+  const reload = useCallback(async () => {
+    try {
+      const list = await entriesOf(campaignId, rigId);
+      const cutoff = Date.now() - KEEP_SENT_MS;
+      for (const e of list) if (e.state === 'sent' && Date.parse(e.createdAt) < cutoff) await deleteEntry(e.key);
+      setEntries(list.filter((e) => !(e.state === 'sent' && Date.parse(e.createdAt) < cutoff)));
+      return list;
+    } catch {
+      return [];
+    }
+  }, [campaignId, rigId]);
+
+  /** Send every waiting entry, oldest first; on no network, try again later with a growing wait. */
+  const flush = useCallback(async () => {
+    if (sending.current) return;
+    sending.current = true;
+    let sentAny = false;
+    let stillWaiting = false;
+    try {
+      const list = await entriesOf(campaignId, rigId);
+      for (const entry of list.filter((e) => e.state === 'waiting')) {
+        const next = await sendEntry(entry);
+        await saveEntry(next);
+        if (next.state === 'waiting') {
+          stillWaiting = true;
+          break;
+        }
+        sentAny = true;
+      }
+    } catch {
+      stillWaiting = true;
+    } finally {
+      sending.current = false;
+    }
+    await reload();
+    if (retryTimer.current) clearTimeout(retryTimer.current);
+    retryTimer.current = null;
+    if (stillWaiting) {
+      retryTimer.current = setTimeout(() => void flushRef.current(), retryDelayMs(retryAttempt.current++));
+    } else {
+      retryAttempt.current = 0;
+    }
+    if (sentAny && typeof navigator !== 'undefined' && navigator.onLine) router.refresh();
+  }, [campaignId, rigId, reload, router]);
+
+  useEffect(() => {
+    flushRef.current = flush;
+  }, [flush]);
+
+  useEffect(() => {
+    // Show what the tablet holds and send what waits, right after the page opens and on every reconnect.
+    const first = setTimeout(() => void flushRef.current(), 0);
+    const online = () => {
+      retryAttempt.current = 0;
+      void flushRef.current();
+    };
+    window.addEventListener('online', online);
+    return () => {
+      clearTimeout(first);
+      window.removeEventListener('online', online);
+      if (retryTimer.current) clearTimeout(retryTimer.current);
+    };
+  }, []);
+
+  // The page shell and its static files are kept by a service worker so that the page opens offline.
+  useEffect(() => {
+    if (typeof navigator === 'undefined' || !('serviceWorker' in navigator)) return;
+    navigator.serviceWorker
+      .register('/rig-sw.js', { scope: '/campaigns/' })
+      .then(() => navigator.serviceWorker.ready)
+      .then((reg) => {
+        const urls = [location.href, ...performance.getEntriesByType('resource').map((r) => r.name)].filter((u) => u.startsWith(location.origin));
+        reg.active?.postMessage({ type: 'cache', urls });
+      })
+      .catch(() => {
+        /* without a service worker the page still works online, and the outbox still keeps entries */
+      });
+  }, []);
+
+  function resetForm() {
     setReadings({});
     setOutcome('passed');
     setFailureReason('');
     setNotes('');
+  }
+
+  function start(item: QueueItem) {
+    setError(null);
+    setMessage(null);
     setWarnings([]);
+    setActive({ runId: item.runId, runNumber: item.runNumber, startedAt: new Date().toISOString(), key: newEntryKey() });
+    resetForm();
+  }
+
+  async function finishOnServer(trial: ActiveTrial, observations: Record<string, number>) {
+    const res = await postJson<{ warnings: { field: string; message: string }[] }>(`/api/v1/campaigns/${campaignId}/trials/${trial.trialId}/finish`, {
+      observations,
+      status: outcome === 'failed' ? 'failed' : 'done',
+      passed: outcome === 'passed',
+      failureReason,
+      notes,
+    });
+    if (!res.ok) return setError(res.error);
+    setWarnings(res.data.warnings ?? []);
+    setMessage(`Run ${trial.runNumber} logged.`);
+    setActive(null);
     router.refresh();
   }
 
@@ -86,24 +201,76 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
       }
       observations[r.name] = n;
     }
+    if (outcome === 'failed' && failureReason.trim() === '') {
+      setError({ code: 'invalid_input', field: 'failureReason', message: 'say why the trial failed (fell, broke, stalled …)' });
+      return;
+    }
     setBusy(true);
-    const res = await postJson<{ warnings: { field: string; message: string }[] }>(`/api/v1/campaigns/${campaignId}/trials/${active.trialId}/finish`, {
-      observations,
-      status: outcome === 'failed' ? 'failed' : 'done',
-      passed: outcome === 'passed',
-      failureReason,
-      notes,
-    });
-    setBusy(false);
-    if (!res.ok) return setError(res.error);
-    setWarnings(res.data.warnings ?? []);
-    setMessage(`Run ${active.runNumber} logged.`);
-    setActive(null);
-    router.refresh();
+    try {
+      if (active.trialId) return await finishOnServer(active, observations);
+      const body: LogBody = {
+        runId: active.runId,
+        rigId,
+        robotId: robotId || undefined,
+        operator,
+        startedAt: active.startedAt,
+        finishedAt: new Date().toISOString(),
+        observations,
+        status: outcome === 'failed' ? 'failed' : 'done',
+        passed: outcome === 'passed',
+        failureReason,
+        notes,
+      };
+      const entry: QueueEntry = { key: active.key, campaignId, rigId, runNumber: active.runNumber, body, state: 'waiting', createdAt: new Date().toISOString(), attempts: 0 };
+      await saveEntry(entry);
+      if (sending.current) {
+        // A replay is under way; this entry goes with the next one.
+        setMessage(`Run ${active.runNumber} logged on this tablet; waiting to send.`);
+        setActive(null);
+        await reload();
+        return;
+      }
+      const sent = await sendEntry(entry);
+      if (sent.state === 'refused') {
+        // Nothing was stored: the trial stays open to correct the reading.
+        await deleteEntry(entry.key);
+        setError(sent.error ?? null);
+        return;
+      }
+      await saveEntry(sent);
+      setActive(null);
+      if (sent.state === 'sent') {
+        setWarnings(sent.warnings ?? []);
+        setMessage(`Run ${entry.runNumber} logged.`);
+        router.refresh();
+      } else if (sent.state === 'waiting') {
+        setMessage(`Run ${entry.runNumber} logged on this tablet; waiting to send (no network).`);
+        if (!retryTimer.current) retryTimer.current = setTimeout(() => void flushRef.current(), retryDelayMs(retryAttempt.current++));
+      } else {
+        setMessage(`Run ${entry.runNumber} was not stored: see the conflict below.`);
+      }
+      await reload();
+    } catch {
+      setError({ code: 'storage', field: null, message: 'this tablet could not keep the entry (browser storage unavailable); write the readings down and try again' });
+    } finally {
+      setBusy(false);
+    }
   }
 
-  const waiting = queue.filter((q) => q.state === 'scheduled' || q.state === 'planned');
+  async function keepTheirs(entry: QueueEntry) {
+    await deleteEntry(entry.key);
+    await reload();
+  }
+
+  async function storeMineAsRepeat(entry: QueueEntry) {
+    await saveEntry({ ...entry, state: 'waiting', body: { ...entry.body, repeat: true }, conflict: undefined, error: undefined });
+    await flush();
+  }
+
+  const locallyLogged = new Set(entries.filter((e) => e.state !== 'refused').map((e) => e.body.runId));
+  const waiting = queue.filter((q) => (q.state === 'scheduled' || q.state === 'planned') && !locallyLogged.has(q.runId) && q.runId !== active?.runId);
   const clock = (iso: string) => new Intl.DateTimeFormat('en-GB', { timeZone, weekday: 'short', hour: '2-digit', minute: '2-digit' }).format(new Date(iso));
+  const waitingCount = entries.filter((e) => e.state === 'waiting').length;
 
   return (
     <div className="rig">
@@ -179,7 +346,12 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
           <p>
             <button type="submit" className="btn" disabled={busy}>
               Finish trial
-            </button>
+            </button>{' '}
+            {!active.trialId ? (
+              <button type="button" className="btn secondary" disabled={busy} onClick={() => setActive(null)}>
+                Cancel (not started)
+              </button>
+            ) : null}
           </p>
         </form>
       ) : null}
@@ -203,6 +375,94 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
               </div>
             </li>
           ))}
+        </ul>
+      </section>
+      <section className="panel" aria-label="Entries on this tablet">
+        <h2 style={{ marginTop: 0 }}>Entries on this tablet</h2>
+        <p data-testid="outbox-count" aria-live="polite">
+          {waitingCount === 0 ? 'Nothing waiting to send.' : `${waitingCount} ${waitingCount === 1 ? 'entry' : 'entries'} waiting to send`}
+          {waitingCount > 0 ? (
+            <>
+              {' '}
+              <button type="button" className="btn secondary" onClick={() => void flush()}>
+                Send now
+              </button>
+            </>
+          ) : null}
+        </p>
+        <ul className="queue" data-testid="outbox">
+          {entries
+            .slice()
+            .reverse()
+            .map((e) => (
+              <li key={e.key} data-state={e.state}>
+                <strong>Run {e.runNumber}</strong> — <span className={`entry-${e.state}`}>{STATE_LABEL[e.state]}</span>
+                <br />
+                <span className="muted">{fmtObservations(e.body.observations)}</span>
+                {e.state === 'refused' && e.error ? (
+                  <div className="error">
+                    <strong>{e.error.field ?? 'entry'}: </strong>
+                    {e.error.message}{' '}
+                    <button type="button" className="btn secondary" onClick={() => void keepTheirs(e)}>
+                      Discard
+                    </button>
+                  </div>
+                ) : null}
+                {e.state === 'sent' && e.warnings?.length ? (
+                  <div className="warning">
+                    {e.warnings.map((w, i) => (
+                      <div key={i}>
+                        <strong>{w.field}: </strong>
+                        {w.message}
+                      </div>
+                    ))}
+                  </div>
+                ) : null}
+                {e.state === 'conflict' && e.conflict ? (
+                  <div className="warning" data-testid="conflict">
+                    <p style={{ marginTop: 0 }}>{e.conflict.message}</p>
+                    <table className="data">
+                      <thead>
+                        <tr>
+                          <th></th>
+                          <th>On the server</th>
+                          <th>From this tablet</th>
+                        </tr>
+                      </thead>
+                      <tbody>
+                        <tr>
+                          <th>Readings</th>
+                          <td>{fmtObservations(e.conflict.stored.observations)}</td>
+                          <td>{fmtObservations(e.conflict.sent.observations)}</td>
+                        </tr>
+                        <tr>
+                          <th>Outcome</th>
+                          <td>{e.conflict.stored.status}</td>
+                          <td>{e.conflict.sent.status}</td>
+                        </tr>
+                        <tr>
+                          <th>Notes</th>
+                          <td>{e.conflict.stored.notes}</td>
+                          <td>{e.conflict.sent.notes}</td>
+                        </tr>
+                      </tbody>
+                    </table>
+                    <p>
+                      <button type="button" className="btn secondary" onClick={() => void keepTheirs(e)}>
+                        Keep the server&apos;s version
+                      </button>{' '}
+                      {e.error?.field === 'runId' ? (
+                        <button type="button" className="btn" onClick={() => void storeMineAsRepeat(e)}>
+                          Store mine as a repeat trial
+                        </button>
+                      ) : (
+                        <span className="muted">Correct the server&apos;s values with an amendment below if mine are right.</span>
+                      )}
+                    </p>
+                  </div>
+                ) : null}
+              </li>
+            ))}
         </ul>
       </section>
     </div>
