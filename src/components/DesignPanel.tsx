@@ -1,5 +1,6 @@
 'use client';
 /** Choose a design method and commit the design to the campaign. */
+import Link from 'next/link';
 import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
@@ -48,6 +49,9 @@ export function DesignPanel({ campaignId, hasRuns }: { campaignId: string; hasRu
   return (
     <form className="panel" onSubmit={generate} noValidate>
       <h2 style={{ marginTop: 0 }}>Generate a design</h2>
+      <p className="muted">
+        Not sure which method fits? <Link href={`/campaigns/${campaignId}/planner`}>Compare candidate designs</Link> side by side before committing one.
+      </p>
       <div className="row">
         <div>
           <label htmlFor="d-method">Design method</label>

@@ -1,0 +1,41 @@
+import Link from 'next/link';
+import '@/app/plan.css';
+import { notFound } from 'next/navigation';
+import { CampaignNav } from '@/components/CampaignNav';
+import { PlannerPanel, type CandidateSpec } from '@/components/PlannerPanel';
+import { isDomainError } from '@/domain/errors';
+import { getCampaign } from '@/server/repos/campaigns';
+import { listRuns } from '@/server/repos/runs';
+
+export const dynamic = 'force-dynamic';
+
+export default async function PlannerPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const campaign = await getCampaign(id).catch((e) => {
+    if (isDomainError(e) && e.code === 'not_found') notFound();
+    throw e;
+  });
+  const runs = await listRuns(id);
+  const hard = campaign.factors.filter((f) => f.hardToChange);
+  const easy = campaign.factors.length - hard.length;
+  // Default pair: the full factorial against an optimal design of the same size; with hard-to-change
+  // factors the optimal one is split-plot (a quarter as many whole plots as runs, at least two).
+  const base: CandidateSpec = { method: 'full-factorial', model: 'interactions', runs: '', centerPoints: '', wholePlots: '', criterion: '', seed: '1' };
+  const size = Math.max(2 * campaign.factors.length + 2, 12);
+  const optimal: CandidateSpec = {
+    ...base,
+    method: 'optimal',
+    runs: String(Math.max(size, 24)),
+    wholePlots: hard.length && easy ? String(Math.max(2, Math.round(Math.max(size, 24) / 4))) : '',
+  };
+  return (
+    <>
+      <CampaignNav id={id} current="/planner" name={campaign.name} isDemo={campaign.isDemo} />
+      <p>
+        <Link href={`/campaigns/${id}`}>← back to Plan &amp; design</Link>
+        {hard.length ? <span className="muted"> Hard-to-change: {hard.map((f) => `${f.name} (${f.changeMinutes} min per change)`).join(', ')}; give whole plots for a split-plot candidate.</span> : null}
+      </p>
+      <PlannerPanel campaignId={id} defaults={[base, optimal]} hasRuns={runs.length > 0} />
+    </>
+  );
+}
