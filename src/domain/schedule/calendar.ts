@@ -62,6 +62,11 @@ export function subtractIntervals(base: readonly MsInterval[], cut: readonly MsI
   return out;
 }
 
+/** Time in both `a` and `b`. */
+export function intersectIntervals(a: readonly MsInterval[], b: readonly MsInterval[]): MsInterval[] {
+  return subtractIntervals(a, subtractIntervals(a, b));
+}
+
 /**
  * The rig's working time over `days` calendar days from `from` (yyyy-MM-dd), as UTC ISO intervals.
  * Each working day contributes [startTime, endTime) read on the wall clock of `timeZone`, so the

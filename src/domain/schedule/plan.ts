@@ -7,7 +7,7 @@ import { MINUTE, prepare, type Prepared, type Unit } from './prepare';
 import { groupedPlan } from './grouped';
 import { placementsOf } from './rig-timeline';
 import { sequentialFill, type RigPlan } from './sequential';
-import type { Infeasibility, LevelValue, RigActivity, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
+import type { Assignment, Infeasibility, LevelValue, RigActivity, ScheduleRequest, ScheduleResult, Unscheduled } from './types';
 
 function minutes(ms: number): number {
   return Math.round((ms / MINUTE) * 1000) / 1000;
@@ -95,7 +95,12 @@ export function assembleResult(p: Prepared, plan: RigPlan, frame?: ResultFrame):
   const placements = perRig.flat();
   placements.sort((a, b) => a.start - b.start || a.rig - b.rig);
   const iso = (ms: number) => new Date(ms).toISOString();
-  const assignments = placements.map((x) => ({ runId: x.run.id, rig: p.rigs[x.rig]!.name, start: iso(x.start), end: iso(x.end) }));
+  const assignments: Assignment[] = placements.map((x) => {
+    const a: Assignment = { runId: x.run.id, rig: p.rigs[x.rig]!.name, start: iso(x.start), end: iso(x.end) };
+    const operator = p.operators.find((o) => o.rig === x.rig && o.hours.some((h) => h.start <= x.start && h.end >= x.end));
+    if (operator) a.operator = operator.name;
+    return a;
+  });
 
   // Previous run on the same rig, to report changeover levels "from → to".
   const previousOnRig = new Map<string, number>();

@@ -3,7 +3,7 @@
  * of the hard-to-change factors, whole-plot units in design order, rigs with merged intervals.
  */
 import { invalidInput } from '@/domain/errors';
-import { mergeIntervals, parseInstant, type MsInterval } from './calendar';
+import { intersectIntervals, mergeIntervals, parseInstant, type MsInterval } from './calendar';
 import { addCalendarDays, assertTimeZone, parseDay, wallTimeToUtc } from './time-zone';
 import type { LevelValue, ScheduleRequest, ScheduleRun } from './types';
 
@@ -57,6 +57,8 @@ export interface Prepared {
   /** Earliest available instant over all rigs (the makespan's origin). */
   originMs: number;
   timeZone: string;
+  /** Operators with their rig (index) and hours, in request order. */
+  operators: { name: string; rig: number; hours: MsInterval[] }[];
 }
 
 export function levelKey(v: LevelValue | undefined): string {
@@ -139,6 +141,18 @@ export function prepare(request: ScheduleRequest): Prepared {
     }
   }
 
+  // Staffing: the union of each rig's operators' hours.
+  const operatorHours = new Map<string, MsInterval[]>();
+  const knownRigs = new Set(request.rigs.map((r) => r.name));
+  (request.operators ?? []).forEach((op, i) => {
+    if (!knownRigs.has(op.rig)) throw invalidInput(`operators[${i}].rig`, `no rig is named "${op.rig}"`);
+    const hours = op.available.map((a, j) => ({
+      start: parseInstant(a.start, `operators[${i}].available[${j}].start`),
+      end: parseInstant(a.end, `operators[${i}].available[${j}].end`),
+    }));
+    operatorHours.set(op.rig, mergeIntervals([...(operatorHours.get(op.rig) ?? []), ...hours]));
+  });
+
   const rigNames = new Set<string>();
   const rigs: PreparedRig[] = request.rigs.map((rig, index) => {
     if (typeof rig.name !== 'string' || rig.name === '') throw invalidInput(`rigs[${index}].name`, 'every rig needs a name');
@@ -150,7 +164,8 @@ export function prepare(request: ScheduleRequest): Prepared {
       if (end <= start) throw invalidInput(`rigs[${index}].available[${j}].end`, 'an interval must end after it starts');
       return { start, end };
     });
-    const intervals = mergeIntervals(raw);
+    const staff = operatorHours.get(rig.name);
+    const intervals = staff ? intersectIntervals(mergeIntervals(raw), staff) : mergeIntervals(raw);
     return { name: rig.name, index, intervals, capacityMs: intervals.reduce((s, i) => s + i.end - i.start, 0) };
   });
   if (rigs.length === 0) throw invalidInput('rigs', 'name at least one rig with available time');
@@ -172,5 +187,10 @@ export function prepare(request: ScheduleRequest): Prepared {
 
   const starts = rigs.flatMap((r) => (r.intervals.length ? [r.intervals[0]!.start] : []));
   const originMs = starts.length ? Math.min(...starts) : 0;
-  return { runs, units, rigs, changeoverFactors, upkeep, cooldownMs, originMs, timeZone };
+  const operators = (request.operators ?? []).map((op) => ({
+    name: op.name,
+    rig: rigs.findIndex((r) => r.name === op.rig),
+    hours: mergeIntervals(op.available.map((a) => ({ start: Date.parse(a.start), end: Date.parse(a.end) }))),
+  }));
+  return { runs, units, rigs, changeoverFactors, upkeep, cooldownMs, originMs, timeZone, operators };
 }

@@ -29,6 +29,14 @@ export interface ScheduleRig {
   available: TimeInterval[];
 }
 
+/** A person who runs trials on one rig during their hours. */
+export interface ScheduleOperator {
+  name: string;
+  /** The rig this operator staffs. */
+  rig: string;
+  available: TimeInterval[];
+}
+
 export interface UpkeepRule {
   /** Upkeep (battery swap, inspection) is due after this many trials since the last one. */
   everyTrials?: number;
@@ -46,6 +54,11 @@ export interface ScheduleRequest {
   /** Minutes a change of level costs, per hard-to-change factor (e.g. `{ surface: 40, gain: 0 }`). */
   changeoverMinutes?: Record<string, number>;
   upkeep?: UpkeepRule;
+  /**
+   * Optional staffing: a rig named by at least one operator runs only while one of them is on duty
+   * (its hours intersected with the union of their hours); a rig no operator names keeps its hours.
+   */
+  operators?: ScheduleOperator[];
   /** Used when a run has no `durationMinutes`. */
   defaultDurationMinutes?: number;
   /** IANA zone that calendar days (blocks, day sheets) are read in; UTC when absent. */
@@ -66,6 +79,8 @@ export interface Assignment {
   rig: string;
   start: string;
   end: string;
+  /** With operators: the first listed operator of the rig on duty for the whole trial. */
+  operator?: string;
 }
 
 /** Non-trial rig time the grid shows: a changeover or an upkeep, just before a trial. */

@@ -40,6 +40,10 @@ export const scheduleRequestSchema = z.object({
   /** The days a rig calendar covers: from a local calendar day, for a number of days. */
   horizon: z.object({ from: z.iso.date({ message: 'write a calendar day as yyyy-MM-dd' }), days: z.number().int().min(1).max(366) }).optional(),
   changeoverMinutes: z.record(z.string(), minutes).optional(),
+  operators: z
+    .array(z.object({ name: z.string().min(1).max(80), rig: z.string().min(1).max(80), available: z.array(z.object({ start: instant, end: instant })).max(5000) }))
+    .max(200)
+    .optional(),
   upkeep: z
     .object({
       everyTrials: z.number().int().min(1).max(10_000).optional(),

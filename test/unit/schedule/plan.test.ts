@@ -163,3 +163,28 @@ describe('planSchedule edge cases', () => {
     expect(res.assignments[8]!.start).toBe('2026-03-09T12:00:00.000Z');
   });
 });
+
+describe('planSchedule with operators', () => {
+  it('runs a staffed rig only while one of its operators is on duty, and names who', () => {
+    const req: ScheduleRequest = {
+      runs: Array.from({ length: 6 }, (_, i) => ({ id: `r${i}`, values: {}, durationMinutes: 60 })),
+      rigs: [{ name: 'A', available: [day('2026-03-02', '08:00', '16:00')] }, { name: 'B', available: [day('2026-03-02', '08:00', '09:00')] }],
+      operators: [
+        { name: 'morning operator', rig: 'A', available: [day('2026-03-02', '08:00', '10:00')] },
+        { name: 'afternoon operator', rig: 'A', available: [day('2026-03-02', '13:00', '15:30')] },
+      ],
+    };
+    const res = planSchedule(req);
+    const onA = res.assignments.filter((a) => a.rig === 'A');
+    expect(onA.map((a) => [a.start.slice(11, 16), a.operator])).toEqual([
+      ['08:00', 'morning operator'],
+      ['09:00', 'morning operator'],
+      ['13:00', 'afternoon operator'],
+      ['14:00', 'afternoon operator'],
+    ]);
+    // Rig B has no operator listed and keeps its own hours.
+    expect(res.assignments.filter((a) => a.rig === 'B').map((a) => [a.start.slice(11, 16), a.operator])).toEqual([['08:00', undefined]]);
+    expect(res.unscheduled).toHaveLength(1);
+    expect(() => planSchedule({ ...req, operators: [{ name: 'x', rig: 'C', available: [] }] })).toThrow(expect.objectContaining({ field: 'operators[0].rig' }));
+  });
+});
