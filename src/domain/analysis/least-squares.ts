@@ -11,7 +11,7 @@ import { dot2 } from './compensated';
 export interface LeastSquaresOptions {
   /** A column whose part not explained by the columns before it is at or below rankTolerance of its norm is aliased. */
   rankTolerance?: number;
-  /** Refinement steps for the coefficients (default 1, or 3 when ill-conditioned; 0 turns refinement off). */
+  /** Refinement steps for the coefficients (default: 3 when ill-conditioned, else 1 up to n·p = 200,000 and 0 beyond; 0 turns refinement off). */
   refinementSteps?: number;
   /**
    * Refine the unscaled covariance (X'X)⁻¹ as well: 'auto' (default) does so when the scaled
@@ -335,19 +335,35 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
   const conditionEstimate = rank > 0 ? dmax / dmin : Infinity;
   const illConditioned = conditionEstimate > ILL_CONDITIONED;
 
-  const z = scaledBasis(x, qr);
-  const low = typeof options.xLow === 'function' ? (illConditioned ? options.xLow() : null) : options.xLow;
-  const zLow = low ? scaledBasis(low, qr) : null;
-  // Residual r = y − Z c in extended precision.
+  // Refinement: always when ill-conditioned; once for well-conditioned problems of modest size,
+  // where it costs little; not for large well-conditioned ones, where QR alone is accurate to
+  // about n·κ·ε and the extended-precision passes would dominate the time.
+  const steps = options.refinementSteps ?? (illConditioned ? 3 : n * p <= 200_000 ? 1 : 0);
+  const refineCov = options.refineCovariance ?? 'auto';
+  const doRefine = refineCov === true || (refineCov === 'auto' && illConditioned);
   const r = new Float64Array(n);
-  for (let i = 0; i < n; i++) r[i] = residualRow(z, zLow, n, rank, i, c, yv[i]!, 0);
-  const steps = options.refinementSteps ?? (illConditioned ? 3 : 1);
-  for (let s = 0; s < steps; s++) refineAugmented(qr, z, zLow, r, c, yv, null);
+  let z: Float64Array | null = null;
+  let zLow: Float64Array | null = null;
+  if (steps > 0 || doRefine) {
+    z = scaledBasis(x, qr);
+    const low = typeof options.xLow === 'function' ? (illConditioned ? options.xLow() : null) : options.xLow;
+    zLow = low ? scaledBasis(low, qr) : null;
+    // Residual r = y − Z c in extended precision.
+    for (let i = 0; i < n; i++) r[i] = residualRow(z, zLow, n, rank, i, c, yv[i]!, 0);
+    for (let s = 0; s < steps; s++) refineAugmented(qr, z, zLow, r, c, yv, null);
+  } else {
+    // r = y − Σ_k x_{pivot k} · c_k / scale, column by column.
+    r.set(yv);
+    for (let k = 0; k < rank; k++) {
+      const col = pivot[k]!;
+      const ck = c[k]! / scale[col]!;
+      const off = col * n;
+      for (let i = 0; i < n; i++) r[i] -= x[off + i]! * ck;
+    }
+  }
 
   // Unscaled covariance over the basis, in pivoted order first: (ZᵀZ)⁻¹ = R⁻¹R⁻ᵀ.
   const cov = new Float64Array(rank * rank);
-  const refineCov = options.refineCovariance ?? 'auto';
-  const doRefine = refineCov === true || (refineCov === 'auto' && illConditioned);
   const e = new Float64Array(rank);
   for (let j = 0; j < rank; j++) {
     e.fill(0);
@@ -355,7 +371,7 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
     const w = Float64Array.from(e);
     solveRt(qr, w);
     solveR(qr, w); // w = (ZᵀZ)⁻¹ e_j
-    if (doRefine) {
+    if (doRefine && z) {
       // [I Z; Zᵀ 0][r; u] = [0; e_j] has u = −(ZᵀZ)⁻¹ e_j and r = −Z u.
       const u = new Float64Array(rank);
       for (let k = 0; k < rank; k++) u[k] = -w[k]!;

@@ -156,4 +156,24 @@ describe('analyze: ordinary least squares and ANOVA', () => {
       { numRuns: 60, seed: 20261202 },
     );
   });
+
+  it('solves large well-conditioned problems without refinement to the same answer as a direct solve', () => {
+    const n = 4100;
+    const names = Array.from({ length: 49 }, (_, j) => `x${j + 1}`);
+    const data = Array.from({ length: n }, (_, i) => {
+      const row: Record<string, number> = {};
+      let y = 0.05 * Math.sin(7.1 * (i + 1));
+      names.forEach((nm, j) => {
+        row[nm] = Math.sin(0.37 * (i + 1) * (j + 1.1) + j);
+        y += ((j % 5) - 2) * row[nm]!;
+      });
+      row.y = y;
+      return row;
+    });
+    const result = analyze({ data, response: 'y', terms: names });
+    const X = new Matrix(data.map((d) => [1, ...names.map((nm) => d[nm]!)]));
+    const direct = solve(X.transpose().mmul(X), X.transpose().mmul(Matrix.columnVector(data.map((d) => d.y!))));
+    result.coefficients.forEach((c, j) => expect(c.estimate).toBeCloseTo(direct.get(j, 0), 9));
+    expect(result.residualDf).toBe(n - 50);
+  });
 });
