@@ -1,8 +1,22 @@
 'use client';
 /** Coefficients with standard errors and the ANOVA table of a fitted model. */
+import { ContourPlot, InteractionChart, IntervalBars, ScatterPlot } from './charts';
 import { DataTable, type ColumnSpec } from './DataTable';
 
+export interface FindingsPlotsData {
+  effects: { label: string; value: number; lo: number | null; hi: number | null; highlight: boolean }[];
+  residuals: { x: number; y: number }[];
+  normal: { x: number; y: number }[];
+  contour: { factorX: string; factorY: string; x: number[]; y: number[]; z: number[][]; held: Record<string, string | number>; points: { x: number; y: number }[] } | null;
+  interaction: { factorA: string; factorB: string; levelsA: (number | string)[]; lines: { levelB: number | string; predicted: number[] }[]; held: Record<string, string | number> } | null;
+  surface: {
+    stationary: { natural: Record<string, number>; predicted: number } | null;
+    canonical: { eigenvalues: number[]; kind: string };
+  } | null;
+}
+
 export interface AnalysisViewData {
+  plots?: FindingsPlotsData | null;
   response: string;
   model: string;
   n: number;
@@ -54,6 +68,53 @@ export function AnalysisView({ data }: { data: AnalysisViewData }) {
       <DataTable columns={COEF} rows={coefRows} testId="coefficients-table" />
       <h3>Analysis of variance</h3>
       <DataTable columns={ANOVA} rows={r.anova} testId="anova-table" />
+      {data.plots ? <FindingsPlots response={data.response} plots={data.plots} /> : null}
     </section>
+  );
+}
+
+const held = (h: Record<string, string | number>) =>
+  Object.entries(h)
+    .map(([k, v]) => `${k} = ${typeof v === 'number' ? Number(v.toPrecision(4)) : v}`)
+    .join(', ');
+
+function FindingsPlots({ response, plots }: { response: string; plots: FindingsPlotsData }) {
+  const s = plots.surface;
+  return (
+    <>
+      <h3>What drives {response}</h3>
+      <p className="muted">Coefficients in coded units (the change from the centre to the high end of each factor) with 95% intervals; dark bars are significant at 5%.</p>
+      <div className="charts">
+        <IntervalBars title={`Effects on ${response}, largest first`} bars={plots.effects} xLabel="coefficient (coded units)" />
+        <ScatterPlot title="Residuals against fitted values" points={plots.residuals} xLabel="fitted" yLabel="residual" refLine={{ a: 0, b: 0 }} />
+        <ScatterPlot title="Normal quantile plot of residuals" points={plots.normal} xLabel="normal quantile" yLabel="residual" />
+        {plots.contour ? (
+          <ContourPlot
+            title={`Fitted ${response} over ${plots.contour.factorX} and ${plots.contour.factorY}${Object.keys(plots.contour.held).length ? ` (${held(plots.contour.held)})` : ''}`}
+            x={plots.contour.x}
+            y={plots.contour.y}
+            z={plots.contour.z}
+            points={plots.contour.points}
+            xLabel={plots.contour.factorX}
+            yLabel={plots.contour.factorY}
+          />
+        ) : null}
+        {plots.interaction ? (
+          <InteractionChart
+            title={`Interaction of ${plots.interaction.factorA} and ${plots.interaction.factorB}`}
+            levelsA={plots.interaction.levelsA}
+            lines={plots.interaction.lines}
+            xLabel={plots.interaction.factorA}
+            yLabel={response}
+          />
+        ) : null}
+      </div>
+      {s ? (
+        <p data-testid="surface-summary">
+          Fitted surface: <strong>{s.canonical.kind}</strong> (eigenvalues {s.canonical.eigenvalues.map((e) => Number(e.toPrecision(3))).join(', ')})
+          {s.stationary ? `; stationary point at ${held(s.stationary.natural)}, predicted ${Number(s.stationary.predicted.toPrecision(4))}` : ''}.
+        </p>
+      ) : null}
+    </>
   );
 }

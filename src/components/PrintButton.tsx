@@ -1,9 +1,10 @@
 'use client';
-/** Opens the browser's print dialog (the page's print stylesheet hides navigation and buttons). */
-export function PrintButton({ label = 'Print this sheet' }: { label?: string }) {
+export function PrintButton() {
   return (
-    <button type="button" className="btn no-print" onClick={() => window.print()}>
-      {label}
-    </button>
+    <p>
+      <button type="button" className="btn secondary" onClick={() => window.print()}>
+        Print this report
+      </button>
+    </p>
   );
 }

@@ -33,3 +33,22 @@ export async function callApi<T>(url: string, method: 'GET' | 'POST', body?: unk
 }
 
 export const postJson = <T,>(url: string, body: unknown, headers?: Record<string, string>) => callApi<T>(url, 'POST', body, headers);
+
+/** POST a text body (e.g. a CSV file) with query parameters; the answer is JSON like callApi's. */
+export async function postText<T>(url: string, text: string, contentType = 'text/csv'): Promise<ApiResult<T>> {
+  let res: Response;
+  try {
+    res = await fetch(url, { method: 'POST', headers: { 'content-type': contentType }, body: text });
+  } catch {
+    return { ok: false, status: 0, error: { code: 'offline', message: 'the server could not be reached; check the network and try again', field: null } };
+  }
+  let json: unknown = null;
+  try {
+    json = await res.json();
+  } catch {
+    /* empty or non-JSON answer */
+  }
+  if (res.ok) return { ok: true, data: json as T, status: res.status };
+  const err = (json as { error?: ApiError } | null)?.error;
+  return { ok: false, status: res.status, error: err ?? { code: 'http_' + res.status, message: `the server answered ${res.status}`, field: null } };
+}

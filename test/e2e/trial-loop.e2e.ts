@@ -139,6 +139,8 @@ describe('the trial loop on a tablet', () => {
     const anova = page.getByTestId('anova-table');
     expect(await anova.innerText()).toMatch(/Residual/);
     expect(await anova.innerText()).toMatch(/Total/);
+    await page.getByRole('heading', { name: 'What drives apex_height' }).waitFor();
+    expect(await page.getByRole('img', { name: /Effects on apex_height/ }).count()).toBe(1);
     await screenshot(page, 'loop-5-findings');
   });
 
@@ -153,6 +155,16 @@ describe('the trial loop on a tablet', () => {
     const after = ((await (await fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: unknown[] }).runs.length;
     expect(after).toBe(before + 1);
     await screenshot(page, 'loop-6-next-trial');
+  });
+
+  it('7 · suggests a batch from the Gaussian-process surrogate with a reason for each trial', async () => {
+    await page.getByLabel('Trials', { exact: true }).fill('3');
+    await page.getByRole('button', { name: 'Suggest a batch' }).click();
+    const batch = page.getByTestId('surrogate-batch');
+    await batch.waitFor({ timeout: 60_000 });
+    expect(await batch.locator('tbody tr').count()).toBe(3);
+    expect(await batch.innerText()).toMatch(/Gaussian process/);
+    await screenshot(page, 'loop-7-surrogate');
     expect(errors).toEqual([]);
   });
 });

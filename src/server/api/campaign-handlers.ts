@@ -8,6 +8,7 @@ import {
   nextTrialSchema,
   runCreateSchema,
   scheduleCreateSchema,
+  suggestionBatchSchema,
   trialFinishSchema,
   trialStartSchema,
 } from '@/server/api/schemas/campaign';
@@ -15,7 +16,7 @@ import { fitCampaign } from '@/server/repos/analyses';
 import { createCampaign, getCampaign, listCampaigns } from '@/server/repos/campaigns';
 import { addRun, commitDesign, listRuns, previewDesign } from '@/server/repos/runs';
 import { listSlots, placeRuns } from '@/server/repos/schedule';
-import { acceptSuggestion, proposeNextTrial } from '@/server/repos/suggestions';
+import { acceptSuggestion, proposeNextTrial, proposeSurrogateBatch } from '@/server/repos/suggestions';
 import { amendTrial, finishTrial, startTrial, trialsOf } from '@/server/repos/trials';
 import { jsonResponse, readJson } from './http';
 import { parseWith } from './validation';
@@ -88,4 +89,9 @@ export const nextTrialHandler = async (req: Request, p: Record<string, string>) 
 export const acceptSuggestionHandler = async (_req: Request, p: Record<string, string>) => {
   const result = await acceptSuggestion(p.id!, p.suggestionId!);
   return jsonResponse(result, result.replayed ? 200 : 201);
+};
+
+export const suggestionBatchHandler = async (req: Request, p: Record<string, string>) => {
+  const input = parseWith(suggestionBatchSchema, await readJson(req));
+  return proposeSurrogateBatch(p.id!, input);
 };

@@ -1,5 +1,14 @@
 /** Fitting the campaign's logged trials, and storing each fit frozen with the data it used. */
-import { analyze, type AnalysisResult } from '@/domain/analysis';
+import {
+  analyze,
+  canonicalAnalysis,
+  contourGrid,
+  interactionPlot,
+  normalQuantile,
+  quadraticForm,
+  stationaryPoint,
+  type AnalysisResult,
+} from '@/domain/analysis';
 import { DomainError } from '@/domain/errors';
 import { standardTerms, type Factor, type StandardModel } from '@/domain/factors';
 import { db } from '@/server/db/client';
@@ -59,8 +68,44 @@ export async function fitCampaign(campaignId: string, response: string, model: S
     await audit(tx, actor, 'fit', 'analysis', a.id, null, { response, terms: chosen, n: usable.length });
     return a;
   });
-  return { id: stored.id, response, model, terms: chosen, n: usable.length, result };
+  return { id: stored.id, response, model, terms: chosen, n: usable.length, result, plots: findingsPlots(result, usable) };
 }
+
+/** Everything the findings page draws, computed from a fit and the data it used. */
+export function findingsPlots(result: AnalysisResult, rows: DataRow[]) {
+  const effects = result.coefficients
+    .filter((c) => c.term !== '(Intercept)')
+    .map((c) => ({ label: c.term, value: c.estimate, lo: c.ci95?.[0] ?? null, hi: c.ci95?.[1] ?? null, highlight: c.p !== null && c.p < 0.05 }))
+    .sort((a, b) => Math.abs(b.value) - Math.abs(a.value));
+  const residuals = result.fitted.map((f, i) => ({ x: f, y: result.residuals[i]! }));
+  const n = result.residuals.length;
+  // Blom plotting positions for the normal quantile plot of residuals.
+  const normal = result.residuals
+    .slice()
+    .sort((a, b) => a - b)
+    .map((r, i) => ({ x: normalQuantile((i + 1 - 0.375) / (n + 0.25)), y: r }));
+  const numeric = result.factors.filter((f) => f.kind !== 'categorical' && result.terms.some((t) => t.split('*').some((p) => p.split('^')[0] === f.name)));
+  let contour = null;
+  let interaction = null;
+  if (numeric.length >= 2) {
+    const [fx, fy] = [numeric[0]!.name, numeric[1]!.name];
+    const g = contourGrid(result, fx, fy, undefined, 31);
+    contour = { ...g, points: rows.map((r) => ({ x: Number(r[fx]), y: Number(r[fy]) })) };
+    if (result.terms.some((t) => t === `${fx}*${fy}` || t === `${fy}*${fx}`)) interaction = interactionPlot(result, fx, fy);
+  }
+  let surface = null;
+  if (result.terms.some((t) => /\^2$/.test(t))) {
+    try {
+      const form = quadraticForm(result);
+      surface = { stationary: stationaryPoint(result, form), canonical: canonicalAnalysis(form) };
+    } catch {
+      surface = null;
+    }
+  }
+  return { effects, residuals, normal, contour, interaction, surface };
+}
+
+export type FindingsPlots = ReturnType<typeof findingsPlots>;
 
 export async function latestAnalysis(campaignId: string, response?: string) {
   const client = await db();
@@ -75,5 +120,6 @@ export async function latestAnalysis(campaignId: string, response?: string) {
     n: req.data?.length ?? 0,
     createdAt: a.createdAt.toISOString(),
     result: parseJson<AnalysisResult>(a.resultJson, {} as AnalysisResult),
+    plots: req.data ? findingsPlots(parseJson<AnalysisResult>(a.resultJson, {} as AnalysisResult), req.data) : null,
   };
 }

@@ -69,3 +69,76 @@ export async function acceptSuggestion(campaignId: string, suggestionId: string,
   });
   return { run, replayed: false };
 }
+
+export interface BatchInput {
+  strategy: 'improve' | 'explore' | 'refine' | 'confirm';
+  response: string;
+  count: number;
+  seed?: number;
+  feasibilityThreshold?: number;
+}
+
+/**
+ * A batch of next trials from the Gaussian-process surrogate of one response, fitted to the logged
+ * trials (failed trials train the feasibility model). Surface swaps cost the factor's change minutes.
+ * Each proposal is stored with its reason; the answer also carries the surrogate's summary and its
+ * mean ± sd along every factor, through the best proposal, for the picture on the page.
+ */
+export async function proposeSurrogateBatch(campaignId: string, input: BatchInput, actor = 'local') {
+  const [{ suggestTrials, fitSurrogate, surrogateSlice }, { campaignData }] = await Promise.all([import('@/domain/surrogate'), import('./analyses')]);
+  const campaign = await getCampaign(campaignId);
+  const response = campaign.responses.find((r) => r.name === input.response);
+  if (!response) {
+    throw new DomainError('invalid_input', `"${input.response}" is not a response of this campaign; known: ${campaign.responses.map((r) => r.name).join(', ')}`, 'response');
+  }
+  const { rows } = await campaignData(campaignId);
+  const factors = domainFactors(campaign);
+  const data = rows
+    .filter((r) => typeof r[response.name] === 'number' || r.passed === 0)
+    .map((r) => {
+      const row: Record<string, number | string | boolean> = {};
+      for (const f of factors) row[f.name] = r[f.name]!;
+      if (typeof r[response.name] === 'number') row[response.name] = r[response.name]!;
+      if (r.passed === 0) row.failed = true;
+      return row;
+    });
+  if (data.filter((d) => typeof d[response.name] === 'number').length < 3) {
+    throw new DomainError('invalid_input', `the surrogate needs at least 3 logged trials with ${response.name}; log more trials first`, 'response');
+  }
+  const swapCost = Object.fromEntries(campaign.factors.filter((f) => f.hardToChange && f.changeMinutes > 0).map((f) => [f.name, f.changeMinutes]));
+  const request = {
+    factors,
+    data: data as never,
+    response: response.name,
+    goal: (response.goal === 'minimize' ? 'minimize' : 'maximize') as 'maximize' | 'minimize',
+    count: input.count,
+    strategy: input.strategy,
+    swapCost,
+    feasibilityThreshold: input.feasibilityThreshold,
+    seed: input.seed ?? 1,
+    trialMinutes: campaign.trialMinutes,
+  };
+  const result = suggestTrials(request);
+  const model = fitSurrogate(request);
+  const held = result.suggestions[0]?.values ?? {};
+  const slices = factors.map((f) => surrogateSlice(model, f.name, held, 40));
+  const client = await db();
+  const stored = await client.$transaction(async (tx) => {
+    const out = [];
+    for (const s of result.suggestions) {
+      const row = await tx.suggestion.create({
+        data: {
+          campaignId,
+          strategy: input.strategy,
+          valuesJson: JSON.stringify(s.values),
+          reason: s.reason,
+          detailsJson: JSON.stringify({ response: response.name, mean: s.mean, sd: s.sd, acquisition: s.acquisition, feasibility: s.feasibility }),
+        },
+      });
+      await audit(tx, actor, 'propose', 'suggestion', row.id, null, { strategy: input.strategy, values: s.values, reason: s.reason });
+      out.push({ id: row.id, ...s });
+    }
+    return out;
+  });
+  return { response: response.name, unit: response.unit ?? '', goal: request.goal, strategy: input.strategy, suggestions: stored, model: result.model, slices };
+}

@@ -198,3 +198,11 @@ export const runCreateSchema = z.object({
   source: z.enum(['design', 'suggestion', 'import']).optional().default('suggestion'),
   reason: z.string().max(500).optional(),
 });
+
+export const suggestionBatchSchema = z.object({
+  strategy: z.enum(['improve', 'explore', 'refine', 'confirm'], { error: 'strategy must be improve, explore, refine or confirm' }).optional().default('improve'),
+  response: name,
+  count: z.number().int().min(1, 'ask for at least 1 trial').max(20, 'at most 20 trials in one batch').optional().default(4),
+  seed: z.number().int().min(0).optional(),
+  feasibilityThreshold: z.number().min(0).max(1, 'a probability between 0 and 1').optional(),
+});

@@ -20,7 +20,7 @@ export default async function AnalysisPage({ params }: { params: Promise<{ id: s
       <CampaignNav id={id} current="/analysis" name={campaign.name} isDemo={campaign.isDemo} />
       <p className="muted">
         Least squares by Householder QR with column pivoting on the logged trials, factors in coded units. Each fit is stored with
-        the data it used.
+        the data it used. <a href={`/campaigns/${id}/report`}>Printable findings report</a>
       </p>
       <AnalysisPanel campaignId={id} responses={campaign.responses.map((r) => r.name)} initial={latest as AnalysisViewData | null} />
     </>

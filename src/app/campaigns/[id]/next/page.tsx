@@ -1,6 +1,7 @@
 import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
 import { NextTrialPanel } from '@/components/NextTrialPanel';
+import { SurrogatePanel } from '@/components/SurrogatePanel';
 import { isDomainError } from '@/domain/errors';
 import { getCampaign } from '@/server/repos/campaigns';
 import { listSuggestions } from '@/server/repos/suggestions';
@@ -18,9 +19,11 @@ export default async function NextTrialsPage({ params }: { params: Promise<{ id:
   return (
     <>
       <CampaignNav id={id} current="/next" name={campaign.name} isDemo={campaign.isDemo} />
+      <SurrogatePanel campaignId={id} responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit }))} units={units} />
+      <h2>Most informative trial for the linear model</h2>
       <p className="muted">
-        The next trial is the setting the campaign&apos;s runs know least about: the candidate with the largest prediction variance
-        under the chosen model. Accepting it adds a run to the campaign.
+        The setting the campaign&apos;s runs know least about: the candidate with the largest prediction variance under the chosen
+        model. Accepting it adds a run to the campaign.
       </p>
       <NextTrialPanel campaignId={id} units={units} />
       {suggestions.length ? (

@@ -35,7 +35,7 @@ export default async function SchedulePage({ params, searchParams }: { params: P
   const today = new Date().toISOString().slice(0, 10);
   const factorNames = campaign.factors.map((f) => f.name);
   const rigIdByName = new Map(campaign.rigs.map((r) => [r.name, r.id]));
-  const weekFrom = from ?? plan.from;
+  const weekFrom = from ?? plan.firstOpenDay;
   const grid = campaign.rigs.length ? weekGrid(plan.request, plan.result, weekFrom, 7) : null;
 
   // Whole plots (and lone runs) that may still move, with where they stand now.

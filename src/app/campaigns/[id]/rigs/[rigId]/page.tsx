@@ -1,9 +1,12 @@
 import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
+import Link from 'next/link';
 import { RigLog, type QueueItem } from '@/components/RigLog';
+import { RigTrials } from '@/components/RigTrials';
 import { SafetyNotice } from '@/components/SafetyNotice';
 import { isDomainError } from '@/domain/errors';
 import { getCampaign } from '@/server/repos/campaigns';
+import { rigTrials } from '@/server/repos/rig-log';
 import { listRuns } from '@/server/repos/runs';
 
 export const dynamic = 'force-dynamic';
@@ -21,7 +24,7 @@ export default async function RigPage({ params }: { params: Promise<{ id: string
     .filter((r) => r.slot?.rigId === rigId && (r.state === 'scheduled' || r.state === 'running'))
     .sort((a, b) => (a.slot!.start < b.slot!.start ? -1 : 1))
     .map((r) => ({ runId: r.id, runNumber: r.runNumber, values: r.values, start: r.slot?.start ?? null, state: r.state, trialId: r.latestTrialId }));
-  const recent = runs.filter((r) => r.slot?.rigId === rigId && (r.state === 'done' || r.state === 'failed')).slice(-8);
+  const logged = await rigTrials(id, rigId);
   return (
     <>
       <CampaignNav id={id} current="/rigs" name={campaign.name} isDemo={campaign.isDemo} />
@@ -35,21 +38,10 @@ export default async function RigPage({ params }: { params: Promise<{ id: string
         robots={campaign.robots.map((r) => ({ id: r.id, name: r.name, massGrams: r.massGrams }))}
         queue={queue}
       />
-      {recent.length ? (
-        <section className="panel">
-          <h2 style={{ marginTop: 0 }}>Logged on this rig</h2>
-          <ul>
-            {recent.map((r) => (
-              <li key={r.id}>
-                Run {r.runNumber} ({r.state}):{' '}
-                {Object.entries(r.observations)
-                  .map(([k, v]) => `${k} ${v}`)
-                  .join(', ') || 'no readings'}
-              </li>
-            ))}
-          </ul>
-        </section>
-      ) : null}
+      <RigTrials campaignId={id} trials={logged} />
+      <p>
+        <Link href={`/campaigns/${id}/import`}>Import past trials from a spreadsheet</Link>
+      </p>
     </>
   );
 }

@@ -1,0 +1,35 @@
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { CampaignNav } from '@/components/CampaignNav';
+import { ImportTrials } from '@/components/ImportTrials';
+import { isDomainError } from '@/domain/errors';
+import { getCampaign } from '@/server/repos/campaigns';
+
+export const dynamic = 'force-dynamic';
+
+export default async function ImportPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const campaign = await getCampaign(id).catch((e) => {
+    if (isDomainError(e) && e.code === 'not_found') notFound();
+    throw e;
+  });
+  return (
+    <>
+      <CampaignNav id={id} current="/import" name={campaign.name} isDemo={campaign.isDemo} />
+      <h2>Import past trials</h2>
+      <p className="muted">
+        Each row becomes a run (source: import) with a finished trial and its readings. Nothing is stored while a row is invalid,
+        unless you choose to leave the invalid rows out. Imported trials count in the findings and the next-trial proposals like
+        any other.
+      </p>
+      <ImportTrials
+        campaignId={id}
+        factors={campaign.factors.map((f) => ({ name: f.name, unit: f.unit, kind: f.kind }))}
+        responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit }))}
+      />
+      <p>
+        <Link href={`/campaigns/${id}/rigs`}>Back to the rig log</Link>
+      </p>
+    </>
+  );
+}
