@@ -56,7 +56,10 @@ export interface PlanInput {
 export interface PlanView {
   request: ScheduleRequest;
   result: ScheduleResult;
+  /** First day of the rigs' hours in the request. */
   from: string;
+  /** The day of the first untried placed run (else `from`): where the week grid opens. */
+  firstOpenDay: string;
   days: number;
   /** Schedule run id (the run number as text) → stored run. */
   runsById: Map<string, PlanRun>;
@@ -160,7 +163,9 @@ export function planView(input: PlanInput): PlanView {
     .sort((a, b) => Date.parse(a.start) - Date.parse(b.start) || a.rig.localeCompare(b.rig));
   const unscheduled = input.runs.filter((r) => !r.slot && MOVABLE_STATES.has(r.state)).map((r) => ({ runId: scheduleRunId(r), reason: 'not placed yet' }));
   const result = summarise(assignments, deriveActivities(request, assignments), request.rigs.flatMap((r) => r.available), unscheduled);
-  return { request, result, from, days, runsById, rigsByName: new Map(input.rigs.map((r) => [r.name, r])) };
+  const open = slotted.filter((r) => MOVABLE_STATES.has(r.state)).map((r) => Date.parse(r.slot!.start));
+  const firstOpenDay = open.length ? dayInZone(Math.min(...open), zone) : from;
+  return { request, result, from, firstOpenDay, days, runsById, rigsByName: new Map(input.rigs.map((r) => [r.name, r])) };
 }
 
 const FIELD_OF_PROBLEM: Record<MoveCheck['problems'][number]['code'], string> = {

@@ -33,6 +33,8 @@ describe('the stored plan as a schedule request and result', () => {
   it('derives one changeover ending where the next trial starts, listing the level change', () => {
     const view = planView(base);
     expect(view.from).toBe('2026-01-05');
+    expect(view.firstOpenDay).toBe('2026-01-05');
+    expect(planView({ ...base, runs: [base.runs[5]!, run(2, 'turf', 0, 1, ['r1', '2026-01-08T08:20:00Z', '2026-01-08T08:40:00Z'])] }).firstOpenDay).toBe('2026-01-08');
     expect(view.result.assignments.map((a) => a.runId)).toEqual(['1', '6', '2', '3', '4']);
     expect(view.result.activities).toEqual([
       { rig: 'Bench 1', kind: 'changeover', start: '2026-01-05T08:40:00.000Z', end: '2026-01-05T09:20:00.000Z', beforeRunId: '3', changes: [{ factor: 'surface', from: 'turf', to: 'glass' }] },
