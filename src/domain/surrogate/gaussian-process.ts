@@ -139,16 +139,28 @@ export function logMarginalLikelihood(
 }
 
 function likelihoodAndGradient(work: LikelihoodWork, theta: ArrayLike<number>): { value: number; gradient: Float64Array } {
-  const { n, d, kind, y, diffs } = work;
-  const gradient = new Float64Array(d + 2);
+  const r = likelihoodLazy(work, theta);
+  return { value: r.value, gradient: r.gradient() };
+}
+
+/** The value now (one Cholesky factorisation); the gradient (which needs K⁻¹) only when asked for. */
+function likelihoodLazy(work: LikelihoodWork, theta: ArrayLike<number>): { value: number; gradient: () => Float64Array } {
+  const { n, d } = work;
   const k = new Float64Array(n * n);
   const r2 = new Float64Array((n * (n - 1)) / 2);
   buildCovariance(work, theta, k, r2);
-  if (!choleskyInPlace(k, n)) return { value: -Infinity, gradient };
-  const alpha = solveUpperTransposed(k, n, solveLower(k, n, y));
+  if (!choleskyInPlace(k, n)) return { value: -Infinity, gradient: () => new Float64Array(d + 2) };
+  const alpha = solveUpperTransposed(k, n, solveLower(k, n, work.y));
   let fit = 0;
-  for (let i = 0; i < n; i++) fit += y[i]! * alpha[i]!;
+  for (let i = 0; i < n; i++) fit += work.y[i]! * alpha[i]!;
   const value = -0.5 * fit - 0.5 * choleskyLogDet(k, n) - 0.5 * n * LOG_2PI;
+  const t = Float64Array.from(theta);
+  return { value, gradient: () => likelihoodGradient(work, t, k, r2, alpha) };
+}
+
+function likelihoodGradient(work: LikelihoodWork, theta: Float64Array, k: Float64Array, r2: Float64Array, alpha: Float64Array): Float64Array {
+  const { n, d, kind, diffs } = work;
+  const gradient = new Float64Array(d + 2);
   const kinv = inverseFromCholesky(k, n);
   const sf2 = Math.exp(theta[d]!);
   const sn2 = Math.exp(theta[d + 1]!);
@@ -174,7 +186,7 @@ function likelihoodAndGradient(work: LikelihoodWork, theta: ArrayLike<number>): 
   }
   gradient[d] = signal;
   gradient[d + 1] = 0.5 * sn2 * traceW;
-  return { value, gradient };
+  return gradient;
 }
 
 function validateTrainingData(inputs: readonly ArrayLike<number>[], y: ArrayLike<number>): number {
@@ -235,10 +247,11 @@ export function fitGaussianProcess(inputs: readonly ArrayLike<number>[], y: Arra
     const rng = seededRandom(options.seed ?? 1);
     const starts = Math.max(1, options.starts ?? 4);
     const objective = (t: Float64Array) => {
-      const r = likelihoodAndGradient(work, t);
-      const g = new Float64Array(d + 2);
-      for (let i = 0; i < d + 2; i++) g[i] = -r.gradient[i]!;
-      return { value: Number.isFinite(r.value) ? -r.value : Infinity, gradient: g };
+      const r = likelihoodLazy(work, t);
+      return {
+        value: Number.isFinite(r.value) ? -r.value : Infinity,
+        gradient: () => r.gradient().map((v) => -v),
+      };
     };
     let best: { x: Float64Array; value: number } | null = null;
     for (let s = 0; s < starts; s++) {

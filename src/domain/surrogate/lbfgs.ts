@@ -7,8 +7,11 @@
 // Nocedal (1980), Math. Comp. 35:773-782 (two-loop recursion); Byrd, Lu, Nocedal & Zhu (1995), SIAM J. Sci. Comput. 16:1190-1208 (bounds)
 
 export interface ObjectiveWithGradient {
-  /** Value and gradient at x; a non-finite value means "outside the usable region" and is backtracked from. */
-  (x: Float64Array): { value: number; gradient: Float64Array };
+  /**
+   * Value and gradient at x; a non-finite value means "outside the usable region" and is backtracked from.
+   * The gradient may be a function: it is then called only for points the line search accepts.
+   */
+  (x: Float64Array): { value: number; gradient: Float64Array | (() => Float64Array) };
 }
 
 export interface BoundedMinimizeOptions {
@@ -48,8 +51,11 @@ export function minimizeBounded(f: ObjectiveWithGradient, start: ArrayLike<numbe
   let x = new Float64Array(n);
   for (let i = 0; i < n; i++) x[i] = clamp(start[i]!, lower[i]!, upper[i]!);
   let evaluations = 1;
-  let { value, gradient } = f(x);
-  if (!Number.isFinite(value)) return { x, value, gradient, iterations: 0, evaluations, converged: false };
+  const resolve = (g: Float64Array | (() => Float64Array)): Float64Array => (typeof g === 'function' ? g() : g);
+  const first = f(x);
+  let value = first.value;
+  if (!Number.isFinite(value)) return { x, value, gradient: new Float64Array(n), iterations: 0, evaluations, converged: false };
+  let gradient = resolve(first.gradient);
 
   const sList: Float64Array[] = [];
   const yList: Float64Array[] = [];
@@ -148,7 +154,7 @@ export function minimizeBounded(f: ObjectiveWithGradient, start: ArrayLike<numbe
     let t = options.maxStep !== undefined && longest > options.maxStep ? options.maxStep / longest : 1;
     let accepted = false;
     let xNew = new Float64Array(n);
-    let next = { value, gradient };
+    let next: ReturnType<ObjectiveWithGradient> = { value, gradient };
     for (let tries = 0; tries < 40; tries++) {
       let decrease = 0;
       for (let i = 0; i < n; i++) {
@@ -171,12 +177,13 @@ export function minimizeBounded(f: ObjectiveWithGradient, start: ArrayLike<numbe
       }
     }
     if (!accepted) break;
+    const nextGradient = resolve(next.gradient);
     const s = new Float64Array(n);
     const y = new Float64Array(n);
     let sy = 0;
     for (let i = 0; i < n; i++) {
       s[i] = xNew[i]! - x[i]!;
-      y[i] = next.gradient[i]! - gradient[i]!;
+      y[i] = nextGradient[i]! - gradient[i]!;
       sy += s[i]! * y[i]!;
     }
     if (sy > 1e-12) {
@@ -193,7 +200,7 @@ export function minimizeBounded(f: ObjectiveWithGradient, start: ArrayLike<numbe
     x = xNew;
     xNew = new Float64Array(n);
     value = next.value;
-    gradient = next.gradient;
+    gradient = nextGradient;
     if (Math.abs(previous - value) <= ftol * Math.max(1, Math.abs(value))) {
       converged = true;
       iterations++;
