@@ -47,3 +47,4 @@ export {
   type MaximizeDesirabilityOptions,
 } from './desirability';
 export { fitLogisticModel, type LogisticFit, type Separation } from './logistic';
+export { backwardReduction, boxCox, type BackwardReductionResult, type BoxCoxResult, type ReductionStep } from './model-selection';
