@@ -6,6 +6,7 @@
 import { invalidInput } from '@/domain/errors';
 import { STANDARD_GRAVITY, degrees } from '@/domain/metrics/ballistics';
 import { arcCrossings, fitFlight, type FlightFit } from './fit';
+import { groundAt, groundPlane } from './ground';
 import { GAP_FACTOR, flightSegments, traceStatistics, type FlightSegment } from './segment';
 import { medianOfRange } from './select';
 
@@ -77,6 +78,8 @@ export interface TrackSummary {
   gapCount: number;
   longestGap: number;
   groundLevel: number;
+  /** Inclination of the ground plane under the stance samples, degrees. */
+  groundInclineDeg: number;
   noiseSigma: number;
   flightThreshold: number;
   meanApexHeight: number | null;
@@ -150,7 +153,7 @@ let keepScratch = new Uint8Array(4096);
 let residualScratch = new Float64Array(4096);
 
 /** Fit one segment: the upper part of the arc, one pass of outlier rejection. */
-function fitSegment(s: TrackSamples, segment: FlightSegment, ground: number, enter: number, noise: number): FlightFit | null {
+function fitSegment(s: TrackSamples, height: Float64Array, segment: FlightSegment, ground: number, enter: number, noise: number): FlightFit | null {
   const { start, end } = segment;
   const t = s.t;
   const z = s.z;
@@ -161,12 +164,13 @@ function fitSegment(s: TrackSamples, segment: FlightSegment, ground: number, ent
   }
   const keep = keepScratch;
   const residuals = residualScratch;
+  // Fit the upper part of the arc: heights above the ground beyond the flight threshold and 10 % of the top.
   let top = -Infinity;
-  for (let i = start; i < end; i++) if (z[i]! > top) top = z[i]!;
+  for (let i = start; i < end; i++) if (height[i]! > top) top = height[i]!;
   const level = ground + Math.max(enter, 0.1 * (top - ground));
   let kept = 0;
   for (let i = start; i < end; i++) {
-    const above = z[i]! > level ? 1 : 0;
+    const above = height[i]! > level ? 1 : 0;
     keep[i - start] = above;
     kept += above;
   }
@@ -232,10 +236,22 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
   const flights: Flight[] = [];
   let tooShort = 0;
   const notBallistic: string[] = [];
-  const pending = flightSegments(s.z, ground, enter).reverse();
+  // An inclined ground (a tilted plate): find flights above the plane under the stance samples.
+  const plane = groundPlane(s.t, s.x, s.y, s.z, Math.max(6 * noise, 0.001), stats.medianInterval);
+  const inclineDeg = degrees(Math.atan(Math.hypot(plane.slopeX, plane.slopeY)));
+  let height = s.z;
+  let base = ground;
+  const inclined = plane.rise > enter;
+  if (inclined) {
+    height = new Float64Array(n);
+    for (let i = 0; i < n; i++) height[i] = s.z[i]! - groundAt(plane, s.x[i]!, s.y[i]!);
+    base = 0;
+    warnings.push(`the ground is inclined by about ${inclineDeg.toFixed(1)}° (its height changes by ${(plane.rise * 1000).toFixed(0)} mm over the track); flights were found above the inclined ground`);
+  }
+  const pending = flightSegments(height, base, enter).reverse();
   while (pending.length > 0) {
     const segment = pending.pop()!;
-    const fit = fitSegment(s, segment, ground, enter, noise);
+    const fit = fitSegment(s, height, segment, base, enter, noise);
     const poor = !fit || !(fit.c < 0) || fit.rmsResidual > Math.max(4 * noise, 0.002);
     if (poor) {
       const gap = largestGap(s.t, segment, gapLimit);
@@ -251,15 +267,18 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
   if (tooShort > 0) warnings.push(`${tooShort} short excursions above the ground had fewer than ${MIN_FIT_SAMPLES} samples in flight and were not counted as hops`);
 
   // Ground level of the stance before each flight and after the last.
-  const stanceGround = (from: number, to: number): number => (to - from >= 3 ? medianOfRange(s.z, from, to) : ground);
+  const stanceGround = (from: number, to: number, near: number): number => {
+    if (to - from >= 3) return medianOfRange(s.z, from, to);
+    return inclined ? groundAt(plane, s.x[near]!, s.y[near]!) : ground;
+  };
   const hops: Hop[] = [];
   const gravityOff: string[] = [];
   const edgeCut: string[] = [];
   const tolerance = options.gravityTolerance ?? 0.1;
   for (let k = 0; k < flights.length; k++) {
     const { segment, fit } = flights[k]!;
-    const before = stanceGround(k > 0 ? flights[k - 1]!.segment.end : 0, segment.start);
-    const after = stanceGround(segment.end, k + 1 < flights.length ? flights[k + 1]!.segment.start : n);
+    const before = stanceGround(k > 0 ? flights[k - 1]!.segment.end : 0, segment.start, segment.start);
+    const after = stanceGround(segment.end, k + 1 < flights.length ? flights[k + 1]!.segment.start : n, segment.end - 1);
     const up = arcCrossings(fit, before);
     const down = arcCrossings(fit, after);
     if (!up || !down) { notBallistic.push(`t ≈ ${s.t[segment.start]!.toFixed(3)} s`); continue; }
@@ -374,7 +393,8 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
     medianSamplingInterval: stats.medianInterval,
     gapCount: stats.gapCount,
     longestGap: stats.longestGap,
-    groundLevel: ground,
+    groundLevel: inclined ? plane.level : ground,
+    groundInclineDeg: inclineDeg,
     noiseSigma: noise,
     flightThreshold: enter,
     meanApexHeight: mean(hops.map((h) => h.apexHeight)),

@@ -156,6 +156,28 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
     });
   });
 
+  it('finds the hops on an inclined ground (a tilted plate) and reports the incline', () => {
+    // Six hops travelling 0.1-0.15 m each up a 10° slope: the ground rises by about 12 cm.
+    const hops = Array.from({ length: 6 }, (_, k) => ({ apexHeight: 0.08 + 0.01 * k, vx: 0.35, vy: 0, stanceBefore: 0.15 }));
+    const slope = Math.tan((10 * Math.PI) / 180);
+    const track = syntheticTrack({ hops, sampleRate: 500, noise: 0.0003, slopeX: slope, seed: 5 });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.hops).toHaveLength(6);
+    expect(r.summary.groundInclineDeg).toBeCloseTo(10, 0);
+    expect(r.warnings.join(' ')).toMatch(/inclined by about 10/);
+    r.hops.forEach((hop, k) => {
+      const truth = track.truth[k]!;
+      expect(Math.abs(hop.apexHeight - truth.apexHeight)).toBeLessThan(0.002);
+      expect(Math.abs(hop.takeoffTime - truth.takeoffTime)).toBeLessThan(0.002);
+      expect(Math.abs(hop.landingTime - truth.landingTime)).toBeLessThan(0.002);
+      expect(Math.abs(hop.hopLength - truth.hopLength)).toBeLessThan(0.002);
+    });
+    // Flat ground: no incline reported.
+    const flat = trackMetrics(syntheticTrack({ hops, sampleRate: 500, noise: 0.0003, seed: 5 }).csv, mapping);
+    expect(flat.summary.groundInclineDeg).toBeLessThan(0.5);
+    expect(flat.warnings.join(' ')).not.toMatch(/inclined/);
+  });
+
   it('ignores isolated marker glitches in stance and in flight', () => {
     const track = syntheticTrack({ hops: threeHops, sampleRate: 500, noise: 0.0003, spikes: 0.004, seed: 11 });
     const r = trackMetrics(track.csv, mapping);

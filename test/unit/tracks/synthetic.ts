@@ -31,6 +31,8 @@ export interface SyntheticOptions {
   start?: { x: number; y: number; t: number };
   /** Depth of a half-sine dip of the marker during each stance (leg compression), m. */
   stanceDip?: number;
+  /** Ground inclined along x: the ground height rises by this much per metre of x (a tilted plate). */
+  slopeX?: number;
   /** Probability that a sample is a marker glitch: height off by +5 cm. */
   spikes?: number;
 }
@@ -71,7 +73,9 @@ export function syntheticTrack(o: SyntheticOptions): SyntheticTrack {
     pieces.push({ t0: t, t1: t + hop.stanceBefore, x0: x, y0: y, vx: 0, vy: 0, vz: 0, flight: false });
     t += hop.stanceBefore;
     const vz = Math.sqrt(2 * g * hop.apexHeight);
-    const T = (2 * vz) / g;
+    // On an inclined ground the landing point is higher or lower: z returns to the ground under x.
+    const slope = o.slopeX ?? 0;
+    const T = (2 * (vz - slope * hop.vx)) / g;
     pieces.push({ t0: t, t1: t + T, x0: x, y0: y, vx: hop.vx, vy: hop.vy, vz, flight: true });
     const lx = x + hop.vx * T;
     const ly = y + hop.vy * T;
@@ -102,7 +106,7 @@ export function syntheticTrack(o: SyntheticOptions): SyntheticTrack {
     const tau = s - piece.t0;
     let px = piece.x0 + piece.vx * tau;
     let py = piece.y0 + piece.vy * tau;
-    let pz = ground + (piece.flight ? piece.vz * tau - 0.5 * g * tau * tau : 0);
+    let pz = ground + (o.slopeX ?? 0) * piece.x0 + (piece.flight ? piece.vz * tau - 0.5 * g * tau * tau : 0);
     if (!piece.flight && o.stanceDip) pz -= o.stanceDip * Math.sin((Math.PI * tau) / (piece.t1 - piece.t0));
     if (o.spikes && rng.next() < o.spikes) pz += 0.05;
     if (noise > 0) {
