@@ -102,6 +102,7 @@ export function parseGenerators(texts: readonly string[], factorNames: readonly 
     if ((mask >> target) & 1) throw invalidInput(at, 'a generated factor cannot appear in its own generator');
     return { target, mask, sign };
   });
+  if (gens.length > MAX_GENERATORS) throw invalidInput(field, `a fraction here has at most ${MAX_GENERATORS} generators`);
   const targets = new Set<number>();
   gens.forEach((g, i) => {
     if (targets.has(g.target)) throw invalidInput(`${field}[${i}]`, 'two generators define the same factor');
@@ -173,8 +174,9 @@ function compareWlp(a: readonly number[], b: readonly number[]): number {
 /**
  * Generators for k factors in 2^m runs with resolution ≥ `resolution`, least aberration first: a
  * depth-first search over columns of the base factors, pruned by resolution, keeping the design
- * with the smallest word-length pattern. The search stops after `budget` nodes and keeps the
- * best found (exhaustive for the usual sizes). Returns null when none exists.
+ * with the smallest word-length pattern. The search stops after `budget` nodes (or the matching
+ * amount of word operations) and keeps the best found (exhaustive for the usual sizes). Returns null
+ * when none is found.
  */
 // Fries & Hunter (1980), Technometrics 22:601-608 (minimum aberration)
 export function searchGenerators(k: number, baseCount: number, resolution: number, budget = 200_000): Generator[] | null {
@@ -187,9 +189,12 @@ export function searchGenerators(k: number, baseCount: number, resolution: numbe
   candidates.sort((a, b) => popcount(b) - popcount(a) || a - b);
   let best: { masks: number[]; wlp: number[] } | null = null;
   let nodes = 0;
+  // Work counts word operations: once a design is found the search stops after `budget` of them,
+  // and gives up after 20 × budget when none is found (the caller then tries more runs).
+  let work = 0;
   const chosen: number[] = [];
   const recurse = (start: number, words: number[]) => {
-    if (nodes++ > budget) return;
+    if (nodes++ > budget || work > (best ? budget * 10 : budget * 100)) return;
     if (chosen.length === p) {
       const wlp = new Array<number>(k + 1).fill(0);
       for (const w of words) wlp[popcount(w)]!++;
@@ -197,7 +202,9 @@ export function searchGenerators(k: number, baseCount: number, resolution: numbe
       return;
     }
     for (let c = start; c <= candidates.length - (p - chosen.length); c++) {
+      if (work > (best ? budget * 10 : budget * 100)) return;
       const w = candidates[c]! | (1 << (baseCount + chosen.length));
+      work += 2 * words.length + 1;
       const added = [w, ...words.map((u) => u ^ w)];
       if (added.some((u) => popcount(u) < resolution)) continue;
       // Prune when the words so far are already worse than the best complete design.
@@ -219,18 +226,22 @@ export function searchGenerators(k: number, baseCount: number, resolution: numbe
 }
 
 /** The smallest fraction (fewest runs) of k two-level factors with at least the given resolution. */
+/** Most generators a fraction may have here (its defining relation has 2^p − 1 words). */
+export const MAX_GENERATORS = 15;
+
 export function chooseFraction(k: number, resolution: number, runs?: number): Generator[] {
-  if (k > FACTOR_LETTERS.length) throw invalidInput('factors', `a two-level fraction here takes at most ${FACTOR_LETTERS.length} factors`);
+  if (k > 20) throw new DomainError('unsupported', 'a two-level fraction here takes at most 20 factors; use a Plackett–Burman or an optimal design', 'factors');
   if (runs !== undefined) {
     const m = Math.log2(runs);
     if (!Number.isInteger(m) || m > k || 2 ** m < k + 1) {
       throw invalidInput('runs', `runs for a two-level fraction of ${k} factors is a power of two from ${2 ** Math.ceil(Math.log2(k + 1))} to ${2 ** k}`);
     }
+    if (k - m > MAX_GENERATORS) throw invalidInput('runs', `a fraction here has at most ${MAX_GENERATORS} generators; ask for at least ${2 ** (k - MAX_GENERATORS)} runs`);
     const g = searchGenerators(k, m, resolution);
     if (!g) throw new DomainError('unsupported', `no ${runs}-run fraction of ${k} factors has resolution ${resolution}; allow more runs or a lower resolution`, 'resolution');
     return g;
   }
-  for (let m = Math.ceil(Math.log2(k + 1)); m <= k; m++) {
+  for (let m = Math.max(Math.ceil(Math.log2(k + 1)), k - MAX_GENERATORS); m <= k; m++) {
     const g = searchGenerators(k, m, resolution);
     if (g) return g;
   }

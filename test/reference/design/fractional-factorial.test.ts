@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import type { Factor } from '@/domain/factors';
 import {
+  chooseFraction,
   FACTOR_LETTERS,
   fractionRuns,
   fractionStructure,
@@ -104,5 +105,16 @@ describe('fractional factorial designs through generateDesign', () => {
   it('names bad generators', () => {
     expect(() => generateDesign({ factors: five, method: 'fractional-factorial', generators: ['E=A'] })).toThrow(/at least two base factors/);
     expect(() => generateDesign({ factors: five, method: 'fractional-factorial', generators: ['E=AZ'] })).toThrow(/factor letters/);
+  });
+});
+
+describe('fractional factorial limits', () => {
+  it('chooses a resolution IV fraction of 20 factors in 64 runs within its work budget', () => {
+    const names = Array.from({ length: 20 }, (_, i) => `x${i + 1}`);
+    const st = fractionStructure(20, chooseFraction(20, 4));
+    expect(st.runs).toBe(64);
+    expect(st.resolution).toBe(4);
+    expect(() => parseGenerators(Array.from({ length: 16 }, (_, i) => `${names[i + 4]}=x1*x2*x3*x4`), [...names, 'x21'])).toThrow(/at most 15 generators/);
+    expect(() => chooseFraction(21, 3)).toThrow(/at most 20 factors/);
   });
 });
