@@ -135,6 +135,18 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
     expect(r.hops[2]!.flightTime).toBeCloseTo(flight, 3);
   });
 
+  it('handles absolute epoch times (16 significant digits) and a capture volume far from the origin', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500, noise: 0.0002, start: { x: 250.1, y: -40.2, t: 1_750_000_000.5 } });
+    const r = trackMetrics(track.csv, mapping);
+    expect(r.hops).toHaveLength(3);
+    r.hops.forEach((hop, k) => {
+      const truth = track.truth[k]!;
+      expect(Math.abs(hop.takeoffTime - truth.takeoffTime)).toBeLessThan(0.0015);
+      expect(Math.abs(hop.apexHeight - truth.apexHeight)).toBeLessThan(0.001);
+      expect(Math.abs(hop.hopLength - truth.hopLength)).toBeLessThan(0.0015);
+    });
+  });
+
   it('sorts samples given out of time order', () => {
     const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
     const [head, ...rows] = track.csv.trim().split('\n');
