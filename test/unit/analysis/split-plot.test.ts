@@ -1,0 +1,62 @@
+import { describe, expect, it } from 'vitest';
+import { analyze, splitPlotAnalysis } from '@/domain/analysis';
+
+// Invented balanced split plot: surface bed set-up A (whole-plot factor, 4 beds per level) and
+// gain B at three levels within every bed. Noise from fixed formulas for determinism.
+const wpEffect = [0.9, -1.2, 0.4, -0.3, 1.1, -0.8, 0.2, -0.5];
+const data = Array.from({ length: 24 }, (_, i) => {
+  const wp = Math.floor(i / 3);
+  const A = wp < 4 ? -1 : 1;
+  const B = (i % 3) - 1;
+  const e = 0.4 * Math.sin(12.9898 * (i + 1));
+  return { bed: `bed${wp + 1}`, A, B, y: 10 + 2 * A + 1.5 * B + 0.5 * A * B + wpEffect[wp]! + e };
+});
+
+describe('split-plot REML with Kenward–Roger degrees of freedom (Kenward & Roger 1997)', () => {
+  const sp = splitPlotAnalysis({ data, response: 'y', terms: ['A', 'B', 'A*B'], wholePlot: 'bed' });
+
+  it('tests the whole-plot factor on whole-plot error and subplot terms on subplot error (balanced case: classical F and df)', () => {
+    // Classical split-plot ANOVA: A against beds within A (8 − 2 = 6 df), B and A*B against the
+    // subplot residual (24 − 8 − 2 = 14 df). KR reproduces these exactly in balanced designs.
+    const means = Array.from({ length: 8 }, (_, w) => {
+      const rows = data.filter((d) => d.bed === `bed${w + 1}`);
+      return { A: rows[0]!.A, y: rows.reduce((s, d) => s + d.y, 0) / rows.length };
+    });
+    const wholePlotAnova = analyze({ data: means, response: 'y', terms: ['A'] });
+    const subplotAnova = analyze({ data, response: 'y', terms: ['bed', 'B', 'A*B'] });
+    const tA = sp.tests.find((t) => t.source === 'A')!;
+    const tB = sp.tests.find((t) => t.source === 'B')!;
+    const tAB = sp.tests.find((t) => t.source === 'A*B')!;
+    expect(tA.denominatorDf).toBeCloseTo(6, 6);
+    expect(tB.denominatorDf).toBeCloseTo(14, 6);
+    expect(tAB.denominatorDf).toBeCloseTo(14, 6);
+    // F agrees to the precision of the REML optimum (golden section in log γ: about 1e-7 relative).
+    const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
+    expect(rel(tA.f, wholePlotAnova.anova.find((r) => r.source === 'A')!.f!)).toBeLessThan(1e-6);
+    expect(rel(tB.f, subplotAnova.anova.find((r) => r.source === 'B')!.f!)).toBeLessThan(1e-6);
+    expect(rel(tAB.f, subplotAnova.anova.find((r) => r.source === 'A*B')!.f!)).toBeLessThan(1e-6);
+  });
+
+  it('estimates the variance components by REML (balanced: from the two mean squares)', () => {
+    const subplotAnova = analyze({ data, response: 'y', terms: ['bed', 'B', 'A*B'] });
+    const msE = subplotAnova.residualStdError! ** 2;
+    expect(sp.residualVariance).toBeCloseTo(msE, 6);
+    const means = Array.from({ length: 8 }, (_, w) => {
+      const rows = data.filter((d) => d.bed === `bed${w + 1}`);
+      return { A: rows[0]!.A, y: rows.reduce((s, d) => s + d.y, 0) / rows.length };
+    });
+    const msWp = 3 * analyze({ data: means, response: 'y', terms: ['A'] }).residualStdError! ** 2;
+    expect(sp.wholePlotVariance).toBeCloseTo((msWp - msE) / 3, 6);
+    expect(sp.wholePlots).toBe(8);
+    // Coefficients equal OLS in a balanced design; the whole-plot factor's error is larger.
+    const ols = analyze({ data, response: 'y', terms: ['A', 'B', 'A*B'] });
+    sp.coefficients.forEach((c, j) => expect(c.estimate).toBeCloseTo(ols.coefficients[j]!.estimate, 9));
+    const seA = sp.coefficients.find((c) => c.term === 'A')!.stdError!;
+    const seB = sp.coefficients.find((c) => c.term === 'B')!.stdError!;
+    expect(seA).toBeGreaterThan(seB);
+  });
+
+  it('needs a whole-plot column', () => {
+    expect(() => splitPlotAnalysis({ data: data.map(({ bed: _bed, ...rest }) => rest), response: 'y', terms: ['A'], wholePlot: 'bed' })).toThrow(/whole plot/);
+  });
+});
