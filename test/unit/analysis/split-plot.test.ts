@@ -59,4 +59,15 @@ describe('split-plot REML with Kenward–Roger degrees of freedom (Kenward & Rog
   it('needs a whole-plot column', () => {
     expect(() => splitPlotAnalysis({ data: data.map(({ bed: _bed, ...rest }) => rest), response: 'y', terms: ['A'], wholePlot: 'bed' })).toThrow(/whole plot/);
   });
+
+  it('gives finite Kenward–Roger df between the whole-plot and subplot counts when a run is missing', () => {
+    const unbalanced = splitPlotAnalysis({ data: data.slice(1), response: 'y', terms: ['A', 'B', 'A*B'], wholePlot: 'bed' });
+    const tA = unbalanced.tests.find((t) => t.source === 'A')!;
+    const tB = unbalanced.tests.find((t) => t.source === 'B')!;
+    expect(tA.denominatorDf).toBeGreaterThan(4);
+    expect(tA.denominatorDf).toBeLessThan(8);
+    expect(tB.denominatorDf).toBeGreaterThan(10);
+    expect(tB.denominatorDf).toBeLessThan(16);
+    for (const t of unbalanced.tests) expect(t.p).toBeGreaterThanOrEqual(0);
+  });
 });
