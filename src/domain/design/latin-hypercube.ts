@@ -39,7 +39,7 @@ export function minimumDistance(levels: readonly (readonly number[])[]): { squar
 
 export interface MaximinOptions {
   p?: number;
-  /** Annealing restarts (default 4) and swaps per restart (default 600·n·d, at most 200000). */
+  /** Annealing restarts (default 4) and swaps per restart (default 600·n·d, at most 200000 and about 3·10^7 / (2·n·d)). */
   restarts?: number;
   iterations?: number;
 }
@@ -49,7 +49,8 @@ export function maximinLatinHypercube(n: number, d: number, rng: RandomSource, o
   if (!Number.isInteger(n) || n < 2) throw invalidInput('runs', 'a Latin hypercube needs at least 2 runs');
   const p = options.p ?? 15;
   const restarts = options.restarts ?? 4;
-  const iterations = options.iterations ?? Math.min(200_000, 600 * n * d);
+  // Each swap costs about 2·n·d operations: cap the work of a restart near 3·10^7.
+  const iterations = options.iterations ?? Math.max(1000, Math.min(200_000, 600 * n * d, Math.floor(3e7 / (2 * n * d))));
   const base = Array.from({ length: n }, (_, i) => i);
   // Work on distances scaled by n so that d^(−p) stays in range for large p.
   const scale = 1 / Math.max(1, n - 1);
@@ -62,9 +63,20 @@ export function maximinLatinHypercube(n: number, d: number, rng: RandomSource, o
     let sum = 0;
     const pairTerm = (i: number, j: number) => {
       let d2 = 0;
-      for (let c = 0; c < d; c++) d2 += ((x[i]![c]! - x[j]![c]!) * scale) ** 2;
+      const xi = x[i]!;
+      const xj = x[j]!;
+      for (let c = 0; c < d; c++) {
+        const t = (xi[c]! - xj[c]!) * scale;
+        d2 += t * t;
+      }
+      if (p === 15) {
+        const d3 = d2 * d2 * d2;
+        return 1 / (d3 * d3 * d2 * Math.sqrt(d2));
+      }
       return Math.pow(d2, -p / 2);
     };
+    const touchedIndex = new Int32Array(2 * n);
+    const touchedValue = new Float64Array(2 * n);
     for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) sum += inv[i * n + j] = pairTerm(i, j);
     let current = Math.pow(sum, 1 / p);
     let runBest = current;
@@ -83,21 +95,23 @@ export function maximinLatinHypercube(n: number, d: number, rng: RandomSource, o
         x[a]![c] = x[b]![c]!;
         x[b]![c] = t;
       };
-      const touched: [number, number, number][] = [];
+      let touched = 0;
       swap();
       for (let k = 0; k < n; k++) {
-        for (const u of [a, b]) {
-          if (k === u || (u === b && k === a)) continue;
-          const i = Math.min(u, k);
-          const j = Math.max(u, k);
+        if (k === a || k === b) continue;
+        for (let side = 0; side < 2; side++) {
+          const u = side === 0 ? a : b;
+          const i = u < k ? u : k;
+          const j = u < k ? k : u;
           const v = pairTerm(i, j);
-          touched.push([i * n + j, inv[i * n + j]!, v]);
+          touchedIndex[touched] = i * n + j;
+          touchedValue[touched++] = v;
           delta += v - inv[i * n + j]!;
         }
       }
       const next = Math.pow(Math.max(sum + delta, 1e-300), 1 / p);
       if (next <= current || rng.next() < Math.exp(-(next - current) / temperature)) {
-        for (const [k, , v] of touched) inv[k] = v;
+        for (let t = 0; t < touched; t++) inv[touchedIndex[t]!] = touchedValue[t]!;
         sum += delta;
         current = next;
         if (current < runBest - 1e-12) {
