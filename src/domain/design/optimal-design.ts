@@ -75,6 +75,11 @@ export function optimalDesign(spec: DesignSpec, model: StandardModel, existingCo
     throw invalidInput('runs', `the model has ${p} parameters; ask for at least ${p - existingCoded.length} runs`);
   }
   if (wholePlots !== undefined && wholePlots > n) throw invalidInput('wholePlots', `${wholePlots} whole plots need at least as many runs`);
+  // Refuse searches far beyond interactive size (about 300 times the 6-factor, 40-run, 100-start case).
+  const starts = options.starts ?? 20;
+  if (starts * (n + existingCoded.length) * p * p > 1e9) {
+    throw invalidInput('starts', `this search (${starts} starts, ${n} runs, ${p} parameters) is too large to run here; use fewer starts or runs`);
+  }
   const region = codedRegion({ factors: allFactors, constraints: spec.constraints, disallowed: spec.disallowed });
   const offset = existingCoded.length > 0 && block ? 1 : 0;
   const blockOf = block ? evenGroups(n, blocks).map((b) => b + offset) : null;
