@@ -93,8 +93,9 @@ export async function seedDemo(options: { force?: boolean; now?: Date } = {}): P
       now,
     );
   }
-  await fitCampaign(campaign.id, 'apex_height', 'interactions', undefined, 'demo-seed');
-  await proposeNextTrial(campaign.id, 'quadratic', 1, 'demo-seed');
+  await fitCampaign(campaign.id, 'apex_height', 'main-effects', undefined, 'demo-seed');
+  await fitCampaign(campaign.id, 'efficiency', 'main-effects', undefined, 'demo-seed');
+  await proposeNextTrial(campaign.id, 'interactions', 1, 'demo-seed');
   return campaign.id;
 }
 

@@ -148,12 +148,11 @@ export function SurrogatePanel({ campaignId, responses, units }: { campaignId: s
                   ))}
                   <th className="num">Predicted</th>
                   <th className="num">P(no failure)</th>
-                  <th>Why</th>
                 </tr>
               </thead>
               <tbody>
-                {batch.suggestions.map((s) => (
-                  <tr key={s.id}>
+                {batch.suggestions.map((s) => [
+                  <tr key={s.id} className="no-rule">
                     <td>
                       <input
                         type="checkbox"
@@ -175,9 +174,14 @@ export function SurrogatePanel({ campaignId, responses, units }: { campaignId: s
                       {unit}
                     </td>
                     <td className="num">{s.feasibility === undefined ? '—' : s.feasibility.toFixed(2)}</td>
-                    <td style={{ whiteSpace: 'normal', minWidth: 260 }}>{s.reason}</td>
-                  </tr>
-                ))}
+                  </tr>,
+                  <tr key={`${s.id}-why`}>
+                    <td />
+                    <td colSpan={Object.keys(s.values).length + 2} className="reason">
+                      {s.reason}
+                    </td>
+                  </tr>,
+                ])}
               </tbody>
             </table>
           </div>
