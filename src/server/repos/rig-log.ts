@@ -208,3 +208,53 @@ export async function getTrial(campaignId: string, trialId: string) {
   if (!trial) throw new DomainError('not_found', 'no such trial in this campaign', 'trialId');
   return trial;
 }
+
+/** A logged trial as the rig page lists it: readings with their origin, amendments, track summaries. */
+export interface RigTrialView {
+  id: string;
+  runNumber: number;
+  status: string;
+  passed: boolean | null;
+  failureReason: string;
+  notes: string;
+  startedAt: string;
+  observations: { name: string; value: number; unit: string; origin: string }[];
+  amendments: { field: string; oldValue: string; newValue: string; reason: string; createdAt: string }[];
+  tracks: { id: string; fileName: string; hopCount: number; createdAt: string }[];
+}
+
+/** The latest finished trials of one rig, newest first. */
+export async function rigTrials(campaignId: string, rigId: string, limit = 12): Promise<RigTrialView[]> {
+  const client = await db();
+  const trials = await client.trial.findMany({
+    where: { campaignId, rigId, status: { not: 'running' } },
+    orderBy: { startedAt: 'desc' },
+    take: limit,
+    include: {
+      run: { select: { runNumber: true } },
+      observations: { orderBy: { name: 'asc' } },
+      amendments: { orderBy: { createdAt: 'asc' } },
+      tracks: { select: { id: true, fileName: true, hopsJson: true, createdAt: true }, orderBy: { createdAt: 'asc' } },
+    },
+  });
+  return trials.map((t) => ({
+    id: t.id,
+    runNumber: t.run.runNumber,
+    status: t.status,
+    passed: t.passed,
+    failureReason: t.failureReason,
+    notes: t.notes,
+    startedAt: t.startedAt.toISOString(),
+    observations: t.observations.map((o) => ({ name: o.name, value: o.value, unit: o.unit, origin: o.origin })),
+    amendments: t.amendments.map((a) => ({ field: a.field, oldValue: a.oldValue, newValue: a.newValue, reason: a.reason, createdAt: a.createdAt.toISOString() })),
+    tracks: t.tracks.map((k) => {
+      let hopCount = 0;
+      try {
+        hopCount = (JSON.parse(k.hopsJson) as { hops?: unknown[] }).hops?.length ?? 0;
+      } catch {
+        /* an unreadable summary counts no hops */
+      }
+      return { id: k.id, fileName: k.fileName, hopCount, createdAt: k.createdAt.toISOString() };
+    }),
+  }));
+}
