@@ -170,7 +170,7 @@ describe('analyze: ordinary least squares and ANOVA', () => {
       row.y = y;
       return row;
     });
-    const result = analyze({ data, response: 'y', terms: names });
+    const result = analyze({ data, response: 'y', terms: names, diagnostics: false });
     const X = new Matrix(data.map((d) => [1, ...names.map((nm) => d[nm]!)]));
     const direct = solve(X.transpose().mmul(X), X.transpose().mmul(Matrix.columnVector(data.map((d) => d.y!))));
     result.coefficients.forEach((c, j) => expect(c.estimate).toBeCloseTo(direct.get(j, 0), 9));

@@ -84,6 +84,7 @@ describe('maximizeDesirability', () => {
       predict: (p) => Object.fromEntries(names.map((nm, k) => [nm, predictors[k]!.predict(p)])),
       responses,
       seed: 7,
+      starts: 15,
     });
     expect(best.desirability).toBeGreaterThan(0.4);
     const recomputed = desirability(best.predicted, responses);
