@@ -306,7 +306,10 @@ export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions =
       if (e instanceof DomainError) throw invalidInput(`existingRuns[${i}].${e.field ?? ''}`, e.message);
       throw e;
     }
-    return { order: 0, values: naturalValues(spec.factors, coded), coded, existing: true };
+    // Runs already made keep the values as logged (not snapped to allowed values or rounded).
+    const values: Point = {};
+    for (const f of spec.factors) values[f.name] = f.kind === 'categorical' ? String(pt[f.name]) : Number(pt[f.name]);
+    return { order: 0, values, coded, existing: true };
   });
   const extras: Extras = {};
   const fresh = construct(spec, model, notes, extras, existing.map((r) => r.coded), options);

@@ -188,6 +188,17 @@ describe('augmentation, progress and stopping', () => {
     expect(all).toEqual([0.25, 0.5, 0.75, 1]);
   });
 
+  it('keeps logged values of runs already made as they are, even off the allowed values', () => {
+    const factors: Factor[] = [cont('payload', 0, 2), { name: 'legs', kind: 'discrete', values: [2, 4, 6] }];
+    const existingRuns = [
+      { payload: 0.1, legs: 3 },
+      { payload: 1.7, legs: 6 },
+    ];
+    const d = augmentDesign({ factors, method: 'optimal', model: 'main-effects', existingRuns, runs: 4, seed: 1, starts: 2 });
+    expect(d.runs.slice(0, 2).map((r) => r.values)).toEqual(existingRuns);
+    for (const r of d.runs.slice(2)) expect([2, 4, 6]).toContain(r.values.legs);
+  });
+
   it('puts runs already made in a block of their own when the new runs are blocked', () => {
     const existingRuns = [
       { payload: 0, gain: 10 },
