@@ -70,16 +70,17 @@ export async function seedDemo(options: { force?: boolean; now?: Date } = {}): P
     { isDemo: true },
   );
   await commitDesign(campaign.id, { method: 'full-factorial', model: 'interactions', seed: 7 }, 'demo-seed');
-  const start = new Date(now.getTime() + 24 * 3600 * 1000).toISOString().slice(0, 10);
-  await placeRuns(campaign.id, start, 10, 'demo-seed');
-  const runs = await listRuns(campaign.id);
+  // Last week's work: all runs placed on the rigs a week ago, the first 16 logged at their slot
+  // times; the rest re-planned from tomorrow, so the rig pages have a queue.
+  const day = (offsetDays: number) => new Date(now.getTime() + offsetDays * 24 * 3600 * 1000).toISOString().slice(0, 10);
+  await placeRuns(campaign.id, day(-7), 7, 'demo-seed');
+  const placed = (await listRuns(campaign.id)).filter((r) => r.slot).sort((a, b) => a.slot!.start.localeCompare(b.slot!.start));
   const rng = seededRandom(2026);
-  const logged = runs.slice(0, 16);
-  for (const [i, run] of logged.entries()) {
-    const startedAt = new Date(now.getTime() - (logged.length - i) * 30 * 60 * 1000);
+  for (const [i, run] of placed.slice(0, 16).entries()) {
+    const startedAt = new Date(run.slot!.start);
     const { trial } = await startTrial(
       campaign.id,
-      { runId: run.id, rigId: campaign.rigs[i % 2]!.id, robotId: campaign.robots[i % 2]!.id, operator: 'demo operator', startedAt: startedAt.toISOString() },
+      { runId: run.id, rigId: run.slot!.rigId, robotId: campaign.robots[i % 2]!.id, operator: 'demo operator', startedAt: startedAt.toISOString() },
       `demo-${campaign.id}-${run.runNumber}`,
       'demo-seed',
       now,
@@ -93,6 +94,7 @@ export async function seedDemo(options: { force?: boolean; now?: Date } = {}): P
       now,
     );
   }
+  await placeRuns(campaign.id, day(1), 5, 'demo-seed');
   await fitCampaign(campaign.id, 'apex_height', 'main-effects', undefined, 'demo-seed');
   await fitCampaign(campaign.id, 'efficiency', 'main-effects', undefined, 'demo-seed');
   await proposeNextTrial(campaign.id, 'interactions', 1, 'demo-seed');
