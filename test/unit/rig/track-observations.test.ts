@@ -5,14 +5,16 @@ import type { ResponseDefinition } from '@/domain/factors';
 import type { TrackSummary } from '@/domain/tracks';
 import { derivedObservations } from '@/server/repos/track-observations';
 
+/** A summary with the fields the mapping reads (the rest of TrackSummary is not used here). */
 function summary(over: Partial<TrackSummary> = {}): TrackSummary {
-  return {
+  const base: Partial<TrackSummary> = {
     hopCount: 3, sampleCount: 1000, duration: 1.5, medianSamplingInterval: 0.001, gapCount: 0, longestGap: 0.001,
     groundLevel: 0, noiseSigma: 0.0001, flightThreshold: 0.002, meanApexHeight: 0.2, maxApexHeight: 0.21,
     meanHopLength: 0.2, meanFlightTime: 0.404, meanStanceTime: 0.1, meanTakeoffSpeed: 2.04, meanTakeoffAngleDeg: 76,
     meanHorizontalSpeed: 0.4, totalDistance: 0.6, meanFittedGravity: 9.8, meanRestitution: 1, meanLandingError: null,
-    energyPerHop: 0.002, costOfTransport: 0.34, ...over,
+    energyPerHop: 0.002, costOfTransport: 0.34,
   };
+  return { ...base, ...over } as TrackSummary;
 }
 
 const response = (name: string, unit?: string): ResponseDefinition => ({ name, unit, goal: 'maximize' }) as ResponseDefinition;
