@@ -339,6 +339,9 @@ export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions =
     base = designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes, diagnosticsOptions);
   }
   const diagnostics: DesignDiagnostics = { ...base, ...extras };
+  if (diagnostics.optimal?.wholePlots !== undefined && diagnostics.optimal.criterion === 'D' && Number.isFinite(diagnostics.optimal.value)) {
+    diagnostics.optimal.generalisedDEfficiency = Math.exp(diagnostics.optimal.value / base.parameters) / base.runs;
+  }
   return { runs, diagnostics, method: spec.method, model, terms: terms.map((t) => t.label), seed };
 }
 

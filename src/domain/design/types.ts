@@ -114,6 +114,8 @@ export interface DesignDiagnostics {
     stopped: boolean;
     wholePlots?: number;
     varianceRatio?: number;
+    /** Split-plot designs: |X'V^-1 X / n|^(1/p), the D-efficiency under the split-plot error structure. */
+    generalisedDEfficiency?: number;
   };
 }
 

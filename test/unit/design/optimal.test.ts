@@ -146,6 +146,9 @@ describe('coordinate exchange: mixed factors, constraints, blocks, whole plots',
     expect(changes).toBe(3);
     expect(d.diagnostics.optimal!.wholePlots).toBe(4);
     expect(d.diagnostics.optimal!.varianceRatio).toBe(1);
+    // With correlated runs inside whole plots the generalised information is smaller than X'X.
+    expect(d.diagnostics.optimal!.generalisedDEfficiency!).toBeGreaterThan(0);
+    expect(d.diagnostics.optimal!.generalisedDEfficiency!).toBeLessThan(d.diagnostics.dEfficiency);
   });
 
   it('refuses whole plots without hard-to-change factors', () => {
