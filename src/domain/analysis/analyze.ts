@@ -8,11 +8,18 @@ import { fitLogisticModel, type LogisticFit } from './logistic';
 import { regressionDiagnostics } from './diagnostics';
 import type { AnalysisRequest, AnalysisResult } from './types';
 
-function diagnosticFields(request: AnalysisRequest, lm: LinearModelFit): Pick<AnalysisResult, 'press' | 'predictedRSquared' | 'diagnostics'> {
+function diagnosticFields(request: AnalysisRequest, lm: LinearModelFit): Pick<AnalysisResult, 'press' | 'predictedRSquared' | 'diagnostics' | 'runs'> {
   const wanted = request.diagnostics ?? lm.frame.n <= 20_000;
   if (!wanted) return {};
   const diagnostics = regressionDiagnostics(lm);
-  return { press: diagnostics.press, predictedRSquared: diagnostics.predictedRSquared, diagnostics };
+  const names = lm.frame.factors.map((f) => f.name);
+  const runs = lm.frame.rowIndex.map((i) => {
+    const row = request.data[i]!;
+    const out: Record<string, number | string> = {};
+    for (const nm of names) out[nm] = row[nm] as number | string;
+    return out;
+  });
+  return { press: diagnostics.press, predictedRSquared: diagnostics.predictedRSquared, diagnostics, runs };
 }
 
 function covarianceRows(lm: LinearModelFit): number[][] {

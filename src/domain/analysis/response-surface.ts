@@ -262,6 +262,8 @@ export interface ContourGrid {
   /** z[j][i]: predicted response at (x[i], y[j]). */
   z: number[][];
   held: Point;
+  /** The runs' settings of the two factors (when the result carries its runs). */
+  designPoints: { x: number; y: number }[];
 }
 
 /** Natural range of a numeric factor for plots: its [low, high]. */
@@ -305,7 +307,8 @@ export function contourGrid(result: AnalysisResult, factorX: string, factorY: st
   const heldOut: Point = { ...base };
   delete heldOut[factorX];
   delete heldOut[factorY];
-  return { factorX, factorY, x: xs, y: ys, z, held: heldOut };
+  const designPoints = (result.runs ?? []).map((r) => ({ x: Number(r[factorX]), y: Number(r[factorY]) }));
+  return { factorX, factorY, x: xs, y: ys, z, held: heldOut, designPoints };
 }
 
 /** Predicted response along one factor (a slice), the others held. */

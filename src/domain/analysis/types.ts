@@ -83,6 +83,8 @@ export interface AnalysisResult {
   press?: number | null;
   predictedRSquared?: number | null;
   diagnostics?: import('./diagnostics').Diagnostics;
+  /** Factor settings of the runs used (natural units, as entered), with diagnostics; for plots of design points. */
+  runs?: Record<string, number | string>[];
   /** Covariance matrix of the estimates (σ̂²·(XᵀX)⁻¹), in coefficient order; absent without residual df. */
   covariance?: number[][];
   /** For family "binomial": deviances, AIC, convergence and any separation found. In the ANOVA of a

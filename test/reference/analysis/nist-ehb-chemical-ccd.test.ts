@@ -94,6 +94,8 @@ describe('NIST e-Handbook chemical CCD (5.5.3.1.4)', () => {
     const grid = contourGrid(result, 'x1', 'x2', undefined, 11);
     expect(grid.z).toHaveLength(11);
     expect(grid.x[0]).toBeCloseTo(-1.414, 12);
+    expect(grid.designPoints).toHaveLength(13);
+    expect(grid.designPoints[0]).toEqual({ x: -1, y: -1 });
     const centre = grid.z[5]![5]!;
     expect(centre).toBeCloseTo(result.coefficients[0]!.estimate, 9);
   });
