@@ -140,6 +140,46 @@ describe('the rig page offline', () => {
     expect(answers).toHaveLength(3);
     expect(answers.every((a) => a.status === 200 && a.replayed)).toBe(true);
     expect(await storedTrials()).toHaveLength(3);
+  });
+
+  it('5 · a run logged on two tablets is shown to the second as a conflict with both values, never overwritten', async () => {
+    const second = await tabletPage(browser);
+    second.on('pageerror', (e) => errors.push(e.message));
+    await second.goto(rigUrl);
+    const startOn = (p: Page) => p.getByRole('button', { name: /^Start run \d+/ }).first();
+    await startOn(second).waitFor();
+    const runLabel = await startOn(second).getAttribute('aria-label');
+    expect(await startOn(page).getAttribute('aria-label')).toBe(runLabel);
+
+    // The second tablet loses the network and logs the run; the first logs the same run online.
+    await second.context().setOffline(true);
+    await startOn(second).click();
+    await second.getByLabel(/apex_height/).fill('150');
+    await second.getByRole('button', { name: 'Finish trial' }).click();
+    await expect.poll(() => second.getByTestId('outbox-count').innerText()).toMatch(/^1 entry waiting to send/);
+    await startOn(page).click();
+    await page.getByLabel(/apex_height/).fill('170');
+    await page.getByRole('button', { name: 'Finish trial' }).click();
+    await expect.poll(() => page.getByRole('status').first().innerText()).toMatch(/logged\./);
+    expect(await storedTrials()).toHaveLength(4);
+
+    await second.context().setOffline(false);
+    const conflict = second.getByTestId('conflict');
+    await expect.poll(() => conflict.count(), { timeout: 30_000 }).toBe(1);
+    const text = await conflict.innerText();
+    expect(text).toMatch(/apex_height 170/);
+    expect(text).toMatch(/apex_height 150/);
+    expect(await storedTrials()).toHaveLength(4);
+    await screenshot(second, 'rig-offline-3-conflict');
+
+    // The operator keeps both: stored as a repeat trial, the first tablet's value untouched.
+    await second.getByRole('button', { name: 'Store mine as a repeat trial' }).click();
+    await expect.poll(() => second.getByTestId('outbox').locator('li[data-state="sent"]').count(), { timeout: 15_000 }).toBe(1);
+    const trials = (await api<{ trials: { observations: { name: string; value: number }[] }[] }>(`/api/v1/campaigns/${campaignId}/trials`)).trials;
+    expect(trials).toHaveLength(5);
+    const apexValues = trials.map((t) => t.observations.find((o) => o.name === 'apex_height')?.value).sort();
+    expect(apexValues).toEqual([150, 160, 170, 182, 231]);
+    await second.context().close();
     expect(errors).toEqual([]);
   });
 });
