@@ -11,6 +11,8 @@ export interface TrackColumns {
   x: string;
   y: string;
   z: string;
+  /** Further numeric columns read as they are (e.g. orientation); a blank cell there is NaN, not a dropout. */
+  extra?: string[];
 }
 
 export interface ParsedTrack {
@@ -28,6 +30,8 @@ export interface ParsedTrack {
   /** Header cells as read (trimmed, quotes removed). */
   header: string[];
   delimiter: string;
+  /** Values of the `extra` columns, in their order, per kept sample (unscaled). */
+  extra: Float64Array[];
 }
 
 const NEWLINE = 10;
@@ -104,12 +108,17 @@ function layoutFromHeader(line: string, columns: TrackColumns): Layout {
   const delimiter = pickDelimiter(line);
   const header = headerCells(line, delimiter);
   const roles = new Int8Array(header.length).fill(-1);
-  const fields: [keyof TrackColumns, number][] = [['time', 0], ['x', 1], ['y', 2], ['z', 3]];
+  const fields: ['time' | 'x' | 'y' | 'z', number][] = [['time', 0], ['x', 1], ['y', 2], ['z', 3]];
   for (const [field, role] of fields) {
     const at = findColumn(header, columns[field], field);
     if (roles[at] !== -1) throw invalidInput(field, `${field}: column '${columns[field]}' is already mapped to another coordinate; map each to its own column`);
     roles[at] = role;
   }
+  (columns.extra ?? []).forEach((name, e) => {
+    const at = findColumn(header, name, `extra[${e}]`);
+    if (roles[at] !== -1) throw invalidInput(name, `${name}: column '${name}' is already mapped; map each column once`);
+    roles[at] = 4 + e;
+  });
   let lastWanted = 0;
   for (let k = 0; k < roles.length; k++) if (roles[k] !== -1) lastWanted = k;
   return { header, delimiter, roles, lastWanted };
@@ -132,6 +141,7 @@ export class TrackCsvReader {
   private x = new Float64Array(0);
   private y = new Float64Array(0);
   private z = new Float64Array(0);
+  private extra: Float64Array[] = [];
   private n = 0;
   private rows = 0;
   private dropped = 0;
@@ -181,6 +191,7 @@ export class TrackCsvReader {
     return {
       t: this.t.subarray(0, n), x: this.x.subarray(0, n), y: this.y.subarray(0, n), z: this.z.subarray(0, n),
       length: n, rows: this.rows, droppedRows: this.dropped, header: this.layout.header, delimiter: this.layout.delimiter,
+      extra: this.extra.map((a) => a.subarray(0, n)),
     };
   }
 
@@ -209,6 +220,8 @@ export class TrackCsvReader {
     this.x = resize(this.x);
     this.y = resize(this.y);
     this.z = resize(this.z);
+    const extraCount = this.columns.extra?.length ?? 0;
+    this.extra = Array.from({ length: extraCount }, (_, e) => resize(this.extra[e] ?? new Float64Array(0)));
   }
 
   /** Parse whole lines bytes[from..end), where the last byte is a newline. */
@@ -240,6 +253,8 @@ export class TrackCsvReader {
     let rows = this.rows;
     let dropped = this.dropped;
     let v0 = 0, v1 = 0, v2 = 0, v3 = 0;
+    const extraValues = new Float64Array(this.columns.extra?.length ?? 0);
+    let extra = this.extra;
     // Every line ends with a newline inside [from, end): each scan below stops at one, so no scan
     // needs a bounds check. Number reading is inlined: with at most 15 significant digits and a
     // decimal exponent within ±22 the result is one correctly rounded operation, identical to Number();
@@ -255,6 +270,7 @@ export class TrackCsvReader {
         continue;
       }
       v0 = v1 = v2 = v3 = Number.NaN;
+      if (extraValues.length > 0) extraValues.fill(Number.NaN);
       let column = 0;
       for (;;) {
         const role = column < roleCount ? roles[column]! : -1;
@@ -338,7 +354,8 @@ export class TrackCsvReader {
           if (role === 0) v0 = value;
           else if (role === 1) v1 = value;
           else if (role === 2) v2 = value;
-          else v3 = value;
+          else if (role === 3) v3 = value;
+          else extraValues[role - 4] = value;
         }
         // Move to the end of this cell.
         c = bytes[pos]!;
@@ -362,12 +379,14 @@ export class TrackCsvReader {
           x = this.x;
           y = this.y;
           z = this.z;
+          extra = this.extra;
           capacity = t.length;
         }
         t[n] = v0 * timeScale;
         x[n] = v1 * lengthScale;
         y[n] = v2 * lengthScale;
         z[n] = v3 * lengthScale;
+        for (let e = 0; e < extraValues.length; e++) extra[e]![n] = extraValues[e]!;
         n++;
       } else dropped++;
     }

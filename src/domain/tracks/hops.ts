@@ -16,6 +16,8 @@ export interface TrackSamples {
   x: Float64Array;
   y: Float64Array;
   z: Float64Array;
+  /** Optional tilt of the body from upright per sample, radians (NaN where unknown). */
+  tilt?: Float64Array;
 }
 
 export interface HopOptions {
@@ -68,6 +70,9 @@ export interface Hop {
   energy?: number;
   /** energy / (m g cycleDistance). */
   costOfTransport?: number;
+  /** Median tilt from upright over the stance before takeoff and after landing, degrees (with orientation). */
+  takeoffTiltDeg?: number;
+  landedTiltDeg?: number;
 }
 
 export interface TrackSummary {
@@ -97,6 +102,8 @@ export interface TrackSummary {
   meanLandingError: number | null;
   energyPerHop: number | null;
   costOfTransport: number | null;
+  /** Largest tilt after a landing, degrees (null without orientation). */
+  maxLandedTiltDeg: number | null;
 }
 
 export interface TrackMetrics {
@@ -137,7 +144,7 @@ function orderedSamples(samples: TrackSamples): { samples: TrackSamples; reorder
   for (const i of order) if (keep.length === 0 || t[i]! > t[keep[keep.length - 1]!]!) keep.push(i);
   const pick = (a: Float64Array) => Float64Array.from(keep, (i) => a[i]!);
   return {
-    samples: { t: pick(samples.t), x: pick(samples.x), y: pick(samples.y), z: pick(samples.z) },
+    samples: { t: pick(samples.t), x: pick(samples.x), y: pick(samples.y), z: pick(samples.z), tilt: samples.tilt ? pick(samples.tilt) : undefined },
     reordered: !sorted,
     duplicates: t.length - keep.length,
   };
@@ -198,6 +205,19 @@ function fitSegment(s: TrackSamples, height: Float64Array, segment: FlightSegmen
   }
   if (removed > 0 && kept - removed >= MIN_FIT_SAMPLES) fit = fitFlight(t, s.x, s.y, z, start, end, keep) ?? fit;
   return fit;
+}
+
+/** Tipped over: a tilt beyond this after landing raises a warning, degrees (common practice, no source). */
+const TIPPED_DEG = 60;
+
+/** Median of the known (non-NaN) tilts in [from, to), degrees; undefined when none. */
+function medianTiltDeg(tilt: Float64Array, from: number, to: number): number | undefined {
+  const known: number[] = [];
+  for (let i = from; i < to; i++) if (tilt[i] === tilt[i]) known.push(tilt[i]!);
+  if (known.length === 0) return undefined;
+  known.sort((a, b) => a - b);
+  const m = known.length >> 1;
+  return degrees(known.length % 2 ? known[m]! : (known[m - 1]! + known[m]!) / 2);
 }
 
 /** Largest time gap inside a segment: index after the gap, or -1 when none exceeds `limit`. */
@@ -274,6 +294,7 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
   const hops: Hop[] = [];
   const gravityOff: string[] = [];
   const edgeCut: string[] = [];
+  const tipped: string[] = [];
   const tolerance = options.gravityTolerance ?? 0.1;
   for (let k = 0; k < flights.length; k++) {
     const { segment, fit } = flights[k]!;
@@ -324,8 +345,19 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
       fitResidual: fit.rmsResidual,
       fitSamples: fit.samples,
     });
+    if (s.tilt) {
+      const hop = hops[hops.length - 1]!;
+      const beforeTilt = medianTiltDeg(s.tilt, k > 0 ? flights[k - 1]!.segment.end : 0, segment.start);
+      const afterTilt = medianTiltDeg(s.tilt, segment.end, k + 1 < flights.length ? flights[k + 1]!.segment.start : n);
+      if (beforeTilt !== undefined) hop.takeoffTiltDeg = beforeTilt;
+      if (afterTilt !== undefined) {
+        hop.landedTiltDeg = afterTilt;
+        if (afterTilt > TIPPED_DEG) tipped.push(`hop ${index} (${afterTilt.toFixed(0)}°)`);
+      }
+    }
   }
   if (notBallistic.length > 0) warnings.push(`phases at ${listed(notBallistic)} are not ballistic arcs (they do not curve downwards, or do not reach the stance level); they were not counted as hops`);
+  if (tipped.length > 0) warnings.push(`the robot appears to have tipped over after ${listed(tipped)}: tilted more than ${TIPPED_DEG}° from upright in the following stance`);
   if (edgeCut.length > 0) warnings.push(`flights at ${listed(edgeCut)} are cut by the start or end of the track; they were not counted as hops`);
   if (gravityOff.length > 0) {
     warnings.push(`the fitted gravity differs from 9.80665 m/s² by more than ${Math.round(tolerance * 100)} % for ${listed(gravityOff)}; check the units, the marker, or non-ballistic forces (wings, tether)`);
@@ -411,6 +443,9 @@ export function hopMetrics(input: TrackSamples, options: HopOptions = {}): Track
     meanLandingError: hasTarget ? mean(hops.map((h) => h.landingError!)) : null,
     energyPerHop,
     costOfTransport: summaryCost,
+    maxLandedTiltDeg: hops.some((h) => h.landedTiltDeg !== undefined)
+      ? hops.reduce((m, h) => Math.max(m, h.landedTiltDeg ?? -Infinity), -Infinity)
+      : null,
   };
   return { hops, summary, warnings };
 }

@@ -29,6 +29,40 @@ export interface TrackMetricsOptions {
   flightThreshold?: number;
   /** Relative deviation of the fitted gravity that raises a warning (default 0.1). */
   gravityTolerance?: number;
+  /** Optional orientation columns, for the tilt from upright before takeoff and after landing. */
+  orientation?: TrackOrientation;
+}
+
+/** Orientation as a quaternion (w, x, y, z; any norm) or as roll and pitch angles (yaw does not tilt). */
+export type TrackOrientation =
+  | { qw: string; qx: string; qy: string; qz: string }
+  | { roll: string; pitch: string; angleUnit: 'deg' | 'rad' };
+
+function orientationColumns(o: TrackOrientation | undefined): string[] {
+  if (!o) return [];
+  return 'qw' in o ? [o.qw, o.qx, o.qy, o.qz] : [o.roll, o.pitch];
+}
+
+/**
+ * Tilt from upright, radians: the angle between the body's z axis and the vertical. For a quaternion
+ * cos θ = 1 − 2 (qx² + qy²) / |q|²; for roll φ and pitch θ (yaw, pitch, roll order) cos = cos φ cos θ.
+ */
+export function tiltFromOrientation(o: TrackOrientation, extra: Float64Array[]): Float64Array {
+  const n = extra[0]?.length ?? 0;
+  const tilt = new Float64Array(n);
+  if ('qw' in o) {
+    const [w, x, y, z] = extra as [Float64Array, Float64Array, Float64Array, Float64Array];
+    for (let i = 0; i < n; i++) {
+      const norm = w[i]! * w[i]! + x[i]! * x[i]! + y[i]! * y[i]! + z[i]! * z[i]!;
+      const c = 1 - (2 * (x[i]! * x[i]! + y[i]! * y[i]!)) / norm;
+      tilt[i] = norm > 0 ? Math.acos(Math.max(-1, Math.min(1, c))) : Number.NaN;
+    }
+  } else {
+    const [roll, pitch] = extra as [Float64Array, Float64Array];
+    const k = o.angleUnit === 'deg' ? Math.PI / 180 : 1;
+    for (let i = 0; i < n; i++) tilt[i] = Math.acos(Math.max(-1, Math.min(1, Math.cos(roll[i]! * k) * Math.cos(pitch[i]! * k))));
+  }
+  return tilt;
 }
 
 function checkedScales(options: TrackMetricsOptions): { lengthScale: number; timeScale: number } {
@@ -44,7 +78,8 @@ function checkedScales(options: TrackMetricsOptions): { lengthScale: number; tim
 }
 
 function metricsOfParsed(parsed: ParsedTrack, options: TrackMetricsOptions, lengthScale: number): TrackMetrics {
-  const result = hopMetrics(parsed, {
+  const samples = options.orientation ? { ...parsed, tilt: tiltFromOrientation(options.orientation, parsed.extra) } : parsed;
+  const result = hopMetrics(samples, {
     massKg: options.massGrams !== undefined ? options.massGrams / 1000 : undefined,
     energyJ: options.energyJoules,
     targetX: options.targetX !== undefined ? options.targetX * lengthScale : undefined,
@@ -64,7 +99,8 @@ function metricsOfParsed(parsed: ParsedTrack, options: TrackMetricsOptions, leng
  */
 export function trackMetricsFromChunks(chunks: Iterable<Uint8Array>, options: TrackMetricsOptions, sizeHint?: number): TrackMetrics {
   const { lengthScale, timeScale } = checkedScales(options);
-  const reader = new TrackCsvReader(options, { timeScale, lengthScale, sizeHint });
+  const columns = { time: options.time, x: options.x, y: options.y, z: options.z, extra: orientationColumns(options.orientation) };
+  const reader = new TrackCsvReader(columns, { timeScale, lengthScale, sizeHint });
   for (const chunk of chunks) reader.push(chunk);
   return metricsOfParsed(reader.finish(), options, lengthScale);
 }

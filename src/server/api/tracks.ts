@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { invalidInput } from '@/domain/errors';
-import { trackMetrics, type TrackMetrics } from '@/domain/tracks';
+import { trackMetrics, type TrackMetrics, type TrackOrientation } from '@/domain/tracks';
 import { parseWith } from './validation';
 
 /** Largest track body accepted, bytes (a minute at 1 kHz is about 2.5 MB). */
@@ -40,6 +40,14 @@ export const trackQuerySchema = z.object({
   targetY: optionalNumber,
   flightThreshold: optionalNumber.refine((v) => v === undefined || v > 0, 'the flight threshold must be > 0'),
   gravityTolerance: optionalNumber.refine((v) => v === undefined || (v > 0 && v < 1), 'the gravity tolerance is a fraction in (0, 1)'),
+  // Optional orientation columns: a quaternion (qw, qx, qy, qz) or roll and pitch with angleUnit.
+  qw: columnName.optional(),
+  qx: columnName.optional(),
+  qy: columnName.optional(),
+  qz: columnName.optional(),
+  roll: columnName.optional(),
+  pitch: columnName.optional(),
+  angleUnit: z.enum(['deg', 'rad'], { message: "use 'deg' or 'rad'" }).optional(),
 });
 
 export type TrackQuery = z.output<typeof trackQuerySchema>;
@@ -50,6 +58,20 @@ export function handleTrackMetrics(csv: string, query: URLSearchParams): TrackMe
   for (const [key, value] of query) raw[key] = value;
   const q = parseWith(trackQuerySchema, raw);
   if (csv.trim() === '') throw invalidInput('(body)', 'the request body is empty; send the track as CSV text with a header line');
-  const options = Object.fromEntries(Object.entries(q).filter(([, v]) => v !== undefined)) as TrackQuery;
-  return trackMetrics(csv, options);
+  const { qw, qx, qy, qz, roll, pitch, angleUnit, ...rest } = q;
+  let orientation: TrackOrientation | undefined;
+  const quaternion = { qw, qx, qy, qz };
+  const givenQuaternion = Object.entries(quaternion).filter(([, v]) => v !== undefined);
+  if (givenQuaternion.length > 0) {
+    const missing = Object.entries(quaternion).find(([, v]) => v === undefined);
+    if (missing) throw invalidInput(missing[0], `${missing[0]}: a quaternion needs all of qw, qx, qy and qz; name the missing column`);
+    orientation = { qw: qw!, qx: qx!, qy: qy!, qz: qz! };
+  } else if (roll !== undefined || pitch !== undefined) {
+    if (roll === undefined) throw invalidInput('roll', 'roll: give both roll and pitch columns');
+    if (pitch === undefined) throw invalidInput('pitch', 'pitch: give both roll and pitch columns');
+    if (angleUnit === undefined) throw invalidInput('angleUnit', "angleUnit: say whether roll and pitch are in 'deg' or 'rad'");
+    orientation = { roll, pitch, angleUnit };
+  }
+  const options = Object.fromEntries(Object.entries(rest).filter(([, v]) => v !== undefined)) as typeof rest;
+  return trackMetrics(csv, { ...options, orientation });
 }

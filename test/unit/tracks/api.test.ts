@@ -35,6 +35,16 @@ describe('tracks API', () => {
     expect(() => handleTrackMetrics('  ', new URLSearchParams(base))).toThrow(/empty/);
   });
 
+  it('takes orientation columns from the query and names a missing one', () => {
+    const [head, ...rows] = track.csv.trim().split('\n');
+    const csv = [`${head},r,p`, ...rows.map((row) => `${row},0,2`)].join('\n');
+    const r = handleTrackMetrics(csv, new URLSearchParams(`${base}&roll=r&pitch=p&angleUnit=deg`));
+    expect(r.hops[0]!.landedTiltDeg).toBeCloseTo(2, 6);
+    expect(() => handleTrackMetrics(csv, new URLSearchParams(`${base}&roll=r`))).toThrow(/pitch/);
+    expect(() => handleTrackMetrics(csv, new URLSearchParams(`${base}&qw=r&qx=p`))).toThrow(/qy/);
+    expect(() => handleTrackMetrics(csv, new URLSearchParams(`${base}&roll=r&pitch=p`))).toThrow(/angleUnit/);
+  });
+
   it('the route answers 200 with JSON, and 400 naming the field', async () => {
     const ok = await POST(new Request(`http://localhost/api/v1/tracks/metrics?${base}`, { method: 'POST', body: track.csv }));
     expect(ok.status).toBe(200);

@@ -147,6 +147,31 @@ describe('track metrics on synthetic ballistic tracks (known parameters)', () =>
     });
   });
 
+  it('reads optional orientation (quaternion or roll/pitch) and flags a robot that tipped over', () => {
+    const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
+    const [head, ...rows] = track.csv.trim().split('\n');
+    const lastLanding = track.truth[2]!.landingTime;
+    // Upright throughout, except lying on its side (90° roll) after the last landing; some cells blank.
+    const withQuaternion = [`${head},qw,qx,qy,qz`, ...rows.map((row, i) => {
+      const t = Number(row.split(',')[0]);
+      const half = t > lastLanding + 0.05 ? Math.PI / 4 : 0;
+      return i % 50 === 7 ? `${row},,,,` : `${row},${Math.cos(half)},${Math.sin(half)},0,0`;
+    })].join('\n');
+    const q = trackMetrics(withQuaternion, { ...mapping, orientation: { qw: 'qw', qx: 'qx', qy: 'qy', qz: 'qz' } });
+    expect(q.hops).toHaveLength(3);
+    expect(q.hops[0]!.takeoffTiltDeg).toBeCloseTo(0, 6);
+    expect(q.hops[0]!.landedTiltDeg).toBeCloseTo(0, 6);
+    expect(q.hops[2]!.landedTiltDeg).toBeGreaterThan(80);
+    expect(q.summary.maxLandedTiltDeg).toBeGreaterThan(80);
+    expect(q.warnings.join(' ')).toMatch(/tipped over after hop 3/);
+    const withAngles = [`${head},roll_deg,pitch_deg,yaw_deg`, ...rows.map((row) => `${row},3,4,170`)].join('\n');
+    const a = trackMetrics(withAngles, { ...mapping, orientation: { roll: 'roll_deg', pitch: 'pitch_deg', angleUnit: 'deg' } });
+    const expected = (Math.acos(Math.cos((3 * Math.PI) / 180) * Math.cos((4 * Math.PI) / 180)) * 180) / Math.PI;
+    expect(a.hops[1]!.landedTiltDeg).toBeCloseTo(expected, 6);
+    expect(a.warnings.join(' ')).not.toMatch(/tipped/);
+    expect(trackMetrics(track.csv, mapping).summary.maxLandedTiltDeg).toBeNull();
+  });
+
   it('sorts samples given out of time order', () => {
     const track = syntheticTrack({ hops: threeHops, sampleRate: 500 });
     const [head, ...rows] = track.csv.trim().split('\n');
