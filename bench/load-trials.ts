@@ -1,0 +1,78 @@
+/**
+ * `npm run load -- [baseUrl] [clients] [seconds]`: a bounded logging load on a running Saltus, loopback
+ * only. N concurrent clients each log trials through POST /api/v1/campaigns/{id}/trials/log (one
+ * idempotency key per entry) against a campaign of its own, for a fixed time; then every
+ * acknowledged key is checked to be stored exactly once. Prints throughput and latency percentiles.
+ */
+import { randomUUID } from 'node:crypto';
+
+const base = process.argv[2] ?? 'http://127.0.0.1:3000';
+const clients = Math.min(Number(process.argv[3] ?? 50), 200);
+const seconds = Math.min(Number(process.argv[4] ?? 60), 300);
+
+const host = new URL(base).hostname;
+if (!['127.0.0.1', 'localhost', '::1', '[::1]'].includes(host)) {
+  console.error('load: refusing to send load anywhere but this machine (127.0.0.1 / localhost)');
+  process.exit(2);
+}
+
+async function post(path: string, body: unknown, headers: Record<string, string> = {}) {
+  const res = await fetch(base + path, { method: 'POST', headers: { 'content-type': 'application/json', ...headers }, body: JSON.stringify(body) });
+  return { status: res.status, json: (await res.json().catch(() => null)) as Record<string, unknown> | null };
+}
+
+async function main() {
+  const c = await post('/api/v1/campaigns', {
+    name: `Load test ${new Date().toISOString()}`,
+    objective: 'synthetic logging load; safe to delete',
+    factors: [{ name: 'payload', kind: 'continuous', low: 0, high: 2 }],
+    responses: [{ name: 'apex_height', unit: 'mm', goal: 'maximize' }],
+    rigs: [{ name: 'Load rig' }],
+  });
+  if (c.status !== 201) throw new Error(`could not create the load campaign: ${JSON.stringify(c.json)}`);
+  const id = String(c.json!.id);
+  await post(`/api/v1/campaigns/${id}/designs`, { method: 'full-factorial', seed: 1 });
+  const runs = (await (await fetch(`${base}/api/v1/campaigns/${id}/runs`)).json()) as { runs: { id: string }[] };
+  const runIds = runs.runs.map((r) => r.id);
+  const latencies: number[] = [];
+  const acknowledged = new Set<string>();
+  let errors = 0;
+  const deadline = Date.now() + seconds * 1000;
+  const started = Date.now();
+  await Promise.all(
+    Array.from({ length: clients }, async (_, k) => {
+      let i = 0;
+      while (Date.now() < deadline && i < 100_000) {
+        const key = randomUUID();
+        const t0 = performance.now();
+        const r = await post(
+          `/api/v1/campaigns/${id}/trials/log`,
+          { runId: runIds[(k + i) % runIds.length], observations: { apex_height: 150 + ((k * 7 + i) % 90) }, status: 'done', repeat: true, operator: `client ${k}` },
+          { 'Idempotency-Key': key },
+        ).catch(() => ({ status: 0, json: null }));
+        latencies.push(performance.now() - t0);
+        if (r.status === 201 || r.status === 200) acknowledged.add(key);
+        else errors++;
+        i++;
+      }
+    }),
+  );
+  const elapsed = (Date.now() - started) / 1000;
+  latencies.sort((a, b) => a - b);
+  const q = (p: number) => latencies[Math.min(latencies.length - 1, Math.floor(p * latencies.length))]!;
+  const trials = (await (await fetch(`${base}/api/v1/campaigns/${id}/trials`)).json()) as { trials: { idempotencyKey: string | null }[] };
+  const stored = new Map<string, number>();
+  for (const t of trials.trials) if (t.idempotencyKey) stored.set(t.idempotencyKey, (stored.get(t.idempotencyKey) ?? 0) + 1);
+  const missing = [...acknowledged].filter((k) => stored.get(k) !== 1).length;
+  console.log(
+    `load: ${clients} clients for ${elapsed.toFixed(1)} s: ${latencies.length} requests, ${(latencies.length / elapsed).toFixed(1)} req/s; ` +
+      `latency p50 ${q(0.5).toFixed(1)} ms, p95 ${q(0.95).toFixed(1)} ms, p99 ${q(0.99).toFixed(1)} ms; errors ${errors}; ` +
+      `acknowledged ${acknowledged.size}, stored exactly once ${acknowledged.size - missing}, missing or duplicated ${missing}`,
+  );
+  process.exit(errors === 0 && missing === 0 ? 0 : 1);
+}
+
+main().catch((e) => {
+  console.error(`load: ${e instanceof Error ? e.message : String(e)}`);
+  process.exit(1);
+});
