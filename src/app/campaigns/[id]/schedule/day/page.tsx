@@ -2,7 +2,7 @@ import Link from 'next/link';
 import '@/app/plan.css';
 import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
-import { PrintButton } from '@/components/PrintButton';
+import { SheetPrintButton } from '@/components/SheetPrintButton';
 import { isDomainError } from '@/domain/errors';
 import { addCalendarDays, daySheet } from '@/domain/schedule';
 import { loadPlan } from '@/server/repos/week-plan';
@@ -51,7 +51,7 @@ export default async function DaySheetPage({ params, searchParams }: { params: P
           <h2 style={{ marginTop: 0 }}>
             {rig.name} — {title}
           </h2>
-          <PrintButton />
+          <SheetPrintButton />
         </div>
         <p className="print-only">
           {campaign.name}
