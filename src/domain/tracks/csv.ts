@@ -258,7 +258,7 @@ export class TrackCsvReader {
     // Every line ends with a newline inside [from, end): each scan below stops at one, so no scan
     // needs a bounds check. Number reading is inlined: with at most 15 significant digits and a
     // decimal exponent within ±22 the result is one correctly rounded operation, identical to Number();
-    // Clinger (1990), PLDI '90:92-101. Anything else falls back to Number() on the cell.
+    // Clinger (1990), PLDI '90:92-101 (citation from memory). Anything else falls back to Number() on the cell.
     while (pos < end) {
       let c = bytes[pos]!;
       if (c === NEWLINE) {

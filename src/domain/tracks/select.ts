@@ -1,6 +1,6 @@
 /**
  * Median of a stretch of a typed array without sorting it: copy into scratch space, then Hoare's
- * selection. Hoare (1961), Communications of the ACM 4:321-322 (Algorithm 65, FIND).
+ * selection. Hoare (1961), Communications of the ACM 4:321-322 (Algorithm 65, FIND; citation from memory).
  */
 
 let scratch = new Float64Array(1024);
