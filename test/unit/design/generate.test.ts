@@ -127,7 +127,7 @@ describe('seeded randomisation', () => {
         expect(sorted(d)).toEqual(reference);
         expect(d.runs.map((r) => r.order)).toEqual(d.runs.map((_, i) => i + 1));
       }),
-      { numRuns: 20 },
+      { numRuns: 12 },
     );
   });
 
