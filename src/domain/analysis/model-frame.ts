@@ -164,7 +164,6 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
   const rowIndex: number[] = [];
   const excludedRows: number[] = [];
   const k = factors.length;
-  let values = new Float64Array(Math.max(1, data.length * k));
   const yAll = new Float64Array(data.length);
   const numericCoding = factors.map((f) => {
     if (f.kind === 'categorical' || coding !== 'coded') return null;
@@ -174,7 +173,7 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
   const names = factors.map((f) => f.name);
   const fastColumns = factors.map((f, j) => (f.kind === 'categorical' ? null : columns[j]!));
   const yColumn = columns[usedNames.length]!;
-  let n = 0;
+  // Runs used: those with a response.
   for (let i = 0; i < data.length; i++) {
     const row = data[i];
     if (row === null || typeof row !== 'object') throw invalidInput(`data[${i}]`, `data[${i}] must be an object of column values`);
@@ -186,39 +185,41 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     }
     const yv = typeof rv === 'number' ? rv : asNumber(rv);
     if (!Number.isFinite(yv)) throw invalidInput(`data[${i}].${response}`, `response ${response} in row ${i} must be a finite number, got "${String(rv)}"`);
-    const off = n * k;
-    for (let j = 0; j < k; j++) {
-      const fast = fastColumns[j];
-      if (fast) {
-        const fv = fast[i]!;
-        if (Number.isFinite(fv)) {
-          const c = numericCoding[j];
-          values[off + j] = c ? (2 * (fv - c.low)) / c.range - 1 : fv;
-          continue;
-        }
+    yAll[rowIndex.length] = yv;
+    rowIndex.push(i);
+  }
+  const n = rowIndex.length;
+  if (n === 0) throw invalidInput('data', `no row has a value for the response "${response}"`);
+  // Factor values column by column (coded or natural; level index for categorical factors).
+  const factorColumns = factors.map((f, j) => {
+    const col = new Float64Array(n);
+    const fast = fastColumns[j];
+    const c = numericCoding[j];
+    for (let t = 0; t < n; t++) {
+      const i = rowIndex[t]!;
+      const fv = fast ? fast[i]! : NaN;
+      if (fv === fv && fv !== Infinity && fv !== -Infinity) {
+        col[t] = c ? (2 * (fv - c.low)) / c.range - 1 : fv;
+        continue;
       }
-      const v = row[names[j]!];
-      const f = factors[j]!;
+      const v = data[i]![names[j]!];
       try {
         if (isMissing(v)) throw invalidInput(f.name, `missing value for factor ${f.name}; give a value for every factor`);
-        if (f.kind === 'categorical') values[off + j] = levelIndex(f, v as string | number);
+        if (f.kind === 'categorical') col[t] = levelIndex(f, v as string | number);
         else {
           const num = asNumber(v);
           if (!Number.isFinite(num)) throw invalidInput(f.name, `${f.name} must be a finite number, got "${String(v)}"`);
-          const c = numericCoding[j];
-          values[off + j] = c ? (2 * (num - c.low)) / c.range - 1 : num;
+          col[t] = c ? (2 * (num - c.low)) / c.range - 1 : num;
         }
       } catch (e) {
         const msg = e instanceof Error ? e.message : String(e);
         throw invalidInput(`data[${i}].${f.name}`, `row ${i}: ${msg}`);
       }
     }
-    rowIndex.push(i);
-    yAll[n] = yv;
-    n++;
-  }
-  if (n === 0) throw invalidInput('data', `no row has a value for the response "${response}"`);
-  values = values.subarray(0, n * k);
+    return col;
+  });
+  const values = new Float64Array(Math.max(1, n * k));
+  for (let t = 0; t < n; t++) for (let j = 0; j < k; j++) values[t * k + j] = factorColumns[j]![t]!;
   let pointViews: Float64Array[] | undefined;
   const pointsOf = () => (pointViews ??= Array.from({ length: n }, (_, i) => values.subarray(i * k, (i + 1) * k)));
   const x = new Float64Array(n * p);
@@ -230,10 +231,11 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
       const off = col * n;
       x.fill(1, off, off + n);
       for (const part of t.parts) {
-        const fj = factorIdx.get(part.name)!;
+        const src = factorColumns[factorIdx.get(part.name)!]!;
+        const pw = part.power;
         for (let i = 0; i < n; i++) {
-          const v = values[i * k + fj]!;
-          x[off + i] *= part.power === 1 ? v : part.power === 2 ? v * v : Math.pow(v, part.power);
+          const v = src[i]!;
+          x[off + i] *= pw === 1 ? v : pw === 2 ? v * v : Math.pow(v, pw);
         }
       }
       col++;
