@@ -203,7 +203,12 @@ export function checkMove(view: PlanView, move: ManualMove): MoveCheck {
   const check = validateManualMove(view.request, view.result, move);
   if (!check.ok) {
     const first = check.problems[0]!;
-    const field = first.code === 'unknown' && first.message.startsWith('no rig') ? 'rig' : FIELD_OF_PROBLEM[first.code];
+    const field =
+      first.code === 'unknown' && first.message.startsWith('no rig')
+        ? 'rig'
+        : first.code === 'split_whole_plot' && move.runOrder === undefined
+          ? 'runId'
+          : FIELD_OF_PROBLEM[first.code];
     const code = first.code === 'reordered_whole_plot' || first.code === 'split_whole_plot' || first.code === 'unknown' ? 'invalid_input' : 'conflict';
     throw new DomainError(code, check.problems.map((p) => p.message).join(' '), field, { problems: check.problems });
   }

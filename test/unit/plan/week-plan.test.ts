@@ -99,7 +99,8 @@ describe('manual moves on the stored plan', () => {
   it('refuses a move onto another trial (field start), a single run of a whole plot, and a tried run', () => {
     const view = planView(base);
     expect(() => checkMove(view, { wholePlot: 2, rig: 'Bench 1', start: '2026-01-05T08:10:00Z' })).toThrow(expect.objectContaining({ field: 'start', code: 'conflict' }));
-    expect(() => checkMove(view, { runId: '3', rig: 'Bench 2', start: '2026-01-06T08:00:00Z' })).toThrow(expect.objectContaining({ code: 'invalid_input' }));
+    expect(() => checkMove(view, { runId: '3', rig: 'Bench 2', start: '2026-01-06T08:00:00Z' })).toThrow(expect.objectContaining({ code: 'invalid_input', field: 'runId' }));
+    expect(() => checkMove(view, { wholePlot: 2, rig: 'Bench 2', start: '2026-01-06T08:00:00Z', runOrder: ['3'] })).toThrow(expect.objectContaining({ field: 'runOrder' }));
     expect(() => checkMove(view, { runId: '6', rig: 'Bench 1', start: '2026-01-06T08:00:00Z' })).toThrow(expect.objectContaining({ field: 'runId' }));
     expect(() => checkMove(view, { wholePlot: 2, rig: 'Bench 9', start: '2026-01-06T08:00:00Z' })).toThrow(expect.objectContaining({ field: 'rig' }));
   });
