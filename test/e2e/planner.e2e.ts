@@ -23,6 +23,7 @@ describe('planner page and week grid on a tablet', () => {
   let browser: Browser;
   let page: Page;
   let id = '';
+  let runsB = 0;
   const errors: string[] = [];
   const firstDay = mondayAhead();
 
@@ -47,6 +48,8 @@ describe('planner page and week grid on a tablet', () => {
     expect(await page.getByLabel('Candidate A method').inputValue()).toBe('full-factorial');
     expect(await page.getByLabel('Candidate B method').inputValue()).toBe('optimal');
     expect(Number(await page.getByLabel('Candidate B whole plots').inputValue())).toBeGreaterThanOrEqual(2);
+    runsB = Number(await page.getByLabel('Candidate B runs').inputValue());
+    expect(runsB).toBeGreaterThan(15); // the interactions model of the demo has 15 parameters
     await page.getByRole('button', { name: 'Compare candidates' }).click();
     const table = page.getByTestId('comparison-table');
     await table.waitFor({ timeout: 60_000 });
@@ -59,10 +62,10 @@ describe('planner page and week grid on a tablet', () => {
     await screenshot(page, 'planner-1-compare');
 
     await page.getByRole('button', { name: 'Commit candidate B' }).click();
-    await expect.poll(() => page.getByRole('status').innerText(), { timeout: 60_000 }).toMatch(/Candidate B committed as design version 2: 24 runs/);
+    await expect.poll(() => page.getByRole('status').innerText(), { timeout: 60_000 }).toMatch(new RegExp(`Candidate B committed as design version 2: ${runsB} runs`));
     const runs = ((await (await fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: { state: string; wholePlot: number | null }[] }).runs;
     const open = runs.filter((r) => r.state === 'planned');
-    expect(open).toHaveLength(24);
+    expect(open).toHaveLength(runsB);
     expect(new Set(open.map((r) => r.wholePlot)).size).toBeGreaterThanOrEqual(2);
   });
 
@@ -70,14 +73,14 @@ describe('planner page and week grid on a tablet', () => {
     await page.goto(`${app.baseUrl}/campaigns/${id}/schedule`);
     await page.getByLabel('First day').fill(firstDay);
     await page.getByRole('button', { name: 'Place runs' }).click();
-    await expect.poll(() => page.getByRole('status').innerText(), { timeout: 30_000 }).toMatch(/Placed 24 runs/);
+    await expect.poll(() => page.getByRole('status').innerText(), { timeout: 30_000 }).toMatch(new RegExp(`Placed ${runsB} runs`));
     // The page re-renders on the server after placing; the grid then opens on the week of the new runs.
     const grid = page.getByTestId('week-grid');
-    await expect.poll(() => grid.getByTestId('trial-block').count(), { timeout: 30_000 }).toBe(24);
+    await expect.poll(() => grid.getByTestId('trial-block').count(), { timeout: 30_000 }).toBe(runsB);
     expect(await grid.getByTestId('changeover').count()).toBeGreaterThan(0);
     expect(await grid.getByTestId('changeover').first().innerText()).toMatch(/change surface →/);
     // One table row per placed run under each rig (the 16 demo trials already run included).
-    await expect.poll(() => page.getByTestId('rig-plan').locator('tbody tr').count(), { timeout: 30_000 }).toBe(16 + 24);
+    await expect.poll(() => page.getByTestId('rig-plan').locator('tbody tr').count(), { timeout: 30_000 }).toBe(16 + runsB);
     await screenshot(page, 'planner-2-week-grid');
   });
 

@@ -4,7 +4,8 @@ import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
 import { PlannerPanel, type CandidateSpec } from '@/components/PlannerPanel';
 import { isDomainError } from '@/domain/errors';
-import { getCampaign } from '@/server/repos/campaigns';
+import { compileModel, standardTerms } from '@/domain/factors';
+import { domainFactors, getCampaign } from '@/server/repos/campaigns';
 import { listRuns } from '@/server/repos/runs';
 
 export const dynamic = 'force-dynamic';
@@ -18,15 +19,18 @@ export default async function PlannerPage({ params }: { params: Promise<{ id: st
   const runs = await listRuns(id);
   const hard = campaign.factors.filter((f) => f.hardToChange);
   const easy = campaign.factors.length - hard.length;
-  // Default pair: the full factorial against an optimal design of the same size; with hard-to-change
-  // factors the optimal one is split-plot (a quarter as many whole plots as runs, at least two).
+  // Default pair: the full factorial against a smaller optimal design for the same interactions model
+  // (three runs more than its parameters, a choice of ours); with hard-to-change factors the optimal one
+  // is split-plot with whole plots of about three runs.
   const base: CandidateSpec = { method: 'full-factorial', model: 'interactions', runs: '', centerPoints: '', wholePlots: '', criterion: '', seed: '1' };
-  const size = Math.max(2 * campaign.factors.length + 2, 12);
+  const factors = domainFactors(campaign);
+  const parameters = compileModel(factors, standardTerms(factors, 'interactions')).labels.length;
+  const runsB = parameters + 3;
   const optimal: CandidateSpec = {
     ...base,
     method: 'optimal',
-    runs: String(Math.max(size, 24)),
-    wholePlots: hard.length && easy ? String(Math.max(2, Math.round(Math.max(size, 24) / 4))) : '',
+    runs: String(runsB),
+    wholePlots: hard.length && easy ? String(Math.max(2, Math.round(runsB / 3))) : '',
   };
   return (
     <>
