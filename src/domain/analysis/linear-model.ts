@@ -59,17 +59,17 @@ function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number
   const buf = new Float64Array(1);
   const bits = new Uint32Array(buf.buffer);
   const byHash = new Map<number, number[][]>();
-  const m = frame.pointMatrix;
-  const k = frame.factors.length;
+  const cols = frame.factorColumns;
+  const k = cols.length;
   const same = (a: number, b: number) => {
-    for (let j = 0; j < k; j++) if (m[a * k + j] !== m[b * k + j]) return false;
+    for (let j = 0; j < k; j++) if (cols[j]![a] !== cols[j]![b]) return false;
     return true;
   };
   let groupsCount = 0;
   for (let i = 0; i < frame.n; i++) {
     let h = 0x811c9dc5;
     for (let j = 0; j < k; j++) {
-      const v = m[i * k + j]!;
+      const v = cols[j]![i]!;
       buf[0] = v === 0 ? 0 : v; // −0 and 0 alike
       h = Math.imul(h ^ bits[0]!, 0x01000193) >>> 0;
       h = Math.imul(h ^ bits[1]!, 0x01000193) >>> 0;

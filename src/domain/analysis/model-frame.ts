@@ -29,8 +29,10 @@ export interface ModelFrame {
   y: Float64Array;
   /** Per used row, the factor vector as entered into the model (coded or natural; level index for categorical). */
   readonly points: Float64Array[];
-  /** The same vectors, row-major n × factors.length. */
-  pointMatrix: Float64Array;
+  /** The same vectors, row-major n × factors.length (built on first use). */
+  readonly pointMatrix: Float64Array;
+  /** Factor values column by column (length n each), in the order of `factors`. */
+  factorColumns: Float64Array[];
   /** Indices into request.data of the rows used, and of rows left out for an empty response. */
   rowIndex: number[];
   excludedRows: number[];
@@ -218,10 +220,15 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     }
     return col;
   });
-  const values = new Float64Array(Math.max(1, n * k));
-  for (let t = 0; t < n; t++) for (let j = 0; j < k; j++) values[t * k + j] = factorColumns[j]![t]!;
+  let valuesCache: Float64Array | undefined;
+  const valuesOf = (): Float64Array => {
+    if (valuesCache) return valuesCache;
+    const v = new Float64Array(Math.max(1, n * k));
+    for (let t = 0; t < n; t++) for (let j = 0; j < k; j++) v[t * k + j] = factorColumns[j]![t]!;
+    return (valuesCache = v);
+  };
   let pointViews: Float64Array[] | undefined;
-  const pointsOf = () => (pointViews ??= Array.from({ length: n }, (_, i) => values.subarray(i * k, (i + 1) * k)));
+  const pointsOf = () => (pointViews ??= Array.from({ length: n }, (_, i) => valuesOf().subarray(i * k, (i + 1) * k)));
   const x = new Float64Array(n * p);
   if (factors.every((f) => f.kind !== 'categorical')) {
     // Column by column: each column is a product of factor powers.
@@ -242,6 +249,7 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     }
   } else {
     const rowBuf = new Float64Array(p);
+    const values = valuesOf();
     for (let i = 0; i < n; i++) {
       model.row(values.subarray(i * k, (i + 1) * k), rowBuf);
       for (let j = 0; j < p; j++) x[j * n + i] = rowBuf[j]!;
@@ -274,7 +282,7 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
         for (const part of term.parts) {
           const fi = factorIndex.get(part.name)!;
           if (factors[fi]!.kind === 'categorical') continue;
-          const v = values[i * k + fi]!;
+          const v = factorColumns[fi]![i]!;
           if (v < 0 && part.power % 2 === 1) sign = -sign;
           for (let k = 0; k < part.power; k++) vals.push(v);
         }
@@ -298,7 +306,10 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     get points() {
       return pointsOf();
     },
-    pointMatrix: values,
+    get pointMatrix() {
+      return valuesOf();
+    },
+    factorColumns,
     rowIndex,
     excludedRows,
     lowParts,
