@@ -82,11 +82,6 @@ export function standardTerms(factors: readonly Factor[], model: StandardModel):
   return terms;
 }
 
-/** Number of model-matrix columns a factor contributes per unit of power in a term. */
-function columnsOfFactor(f: Factor): number {
-  return f.kind === 'categorical' ? f.levels.length - 1 : 1;
-}
-
 /** Column labels of the model matrix for the given terms. */
 export function columnLabels(factors: readonly Factor[], terms: readonly ModelTerm[]): { labels: string[]; termOfColumn: number[] } {
   const byName = new Map(factors.map((f) => [f.name, f]));
