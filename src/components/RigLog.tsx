@@ -9,6 +9,7 @@ import { useRouter } from 'next/navigation';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
+import { checkTabletReadings } from './rig-readings';
 import { deleteEntry, entriesOf, newEntryKey, retryDelayMs, saveEntry, sendEntry, type LogBody, type QueueEntry } from './rig-queue';
 
 export interface QueueItem {
@@ -208,13 +209,25 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
     setBusy(true);
     try {
       if (active.trialId) return await finishOnServer(active, observations);
+      const finishedAt = new Date().toISOString();
+      const robot = robots.find((r) => r.id === robotId);
+      const local = checkTabletReadings(
+        responses,
+        observations,
+        { passed: outcome === 'passed', failureReason, startedAt: active.startedAt, finishedAt },
+        { now: finishedAt, robotMassKg: robot ? robot.massGrams / 1000 : null },
+      );
+      if (local.errors.length) {
+        setError({ code: 'invalid_input', field: local.errors[0]!.field, message: local.errors[0]!.message });
+        return;
+      }
       const body: LogBody = {
         runId: active.runId,
         rigId,
         robotId: robotId || undefined,
         operator,
         startedAt: active.startedAt,
-        finishedAt: new Date().toISOString(),
+        finishedAt,
         observations,
         status: outcome === 'failed' ? 'failed' : 'done',
         passed: outcome === 'passed',
@@ -225,6 +238,7 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
       await saveEntry(entry);
       if (sending.current) {
         // A replay is under way; this entry goes with the next one.
+        setWarnings(local.warnings);
         setMessage(`Run ${active.runNumber} logged on this tablet; waiting to send.`);
         setActive(null);
         await reload();
@@ -244,6 +258,7 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
         setMessage(`Run ${entry.runNumber} logged.`);
         router.refresh();
       } else if (sent.state === 'waiting') {
+        setWarnings(local.warnings);
         setMessage(`Run ${entry.runNumber} logged on this tablet; waiting to send (no network).`);
         if (!retryTimer.current) retryTimer.current = setTimeout(() => void flushRef.current(), retryDelayMs(retryAttempt.current++));
       } else {

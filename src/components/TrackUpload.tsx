@@ -13,6 +13,8 @@ import { ErrorBox } from './FieldError';
 
 interface StoredTrack {
   trackId: string;
+  /** Downsampled z(t) in s and m (answered for MCAP logs; a CSV is plotted from the file itself). */
+  profile?: { t: number[]; z: number[] };
   metrics: TrackMetrics;
   stored: { name: string; value: number; unit: string }[];
   kept: { name: string; typed: number; fromTrack: number; unit: string }[];
@@ -36,6 +38,9 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
   const router = useRouter();
   const [fileName, setFileName] = useState('');
   const [text, setText] = useState('');
+  const [format, setFormat] = useState<'csv' | 'mcap'>('csv');
+  const [bytes, setBytes] = useState<ArrayBuffer | null>(null);
+  const [topic, setTopic] = useState('');
   const [header, setHeader] = useState<string[]>([]);
   const [columns, setColumns] = useState({ time: '', x: '', y: '', z: '' });
   const [lengthUnit, setLengthUnit] = useState<'m' | 'mm'>('mm');
@@ -51,6 +56,16 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
     setError(null);
     setResult(null);
     if (!file) return;
+    if (/\.mcap$/i.test(file.name)) {
+      setFormat('mcap');
+      setFileName(file.name);
+      setBytes(await file.arrayBuffer());
+      setText('');
+      setHeader([]);
+      return;
+    }
+    setFormat('csv');
+    setBytes(null);
     const content = await file.text();
     const h = headerOf(content);
     setFileName(file.name);
@@ -60,9 +75,26 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
     if (/_ms\b|\(ms\)|\bms\b/i.test(guessColumn(h, 'time'))) setTimeUnit('ms');
   }
 
+  async function uploadMcap() {
+    if (!bytes) return;
+    if (topic.trim() === '') return setError({ code: 'invalid_input', field: 'topic', message: 'name the topic that carries the robot pose, e.g. /robot/pose' });
+    const q = new URLSearchParams({ format: 'mcap', topic: topic.trim(), fileName });
+    if (targetX.trim() !== '' && targetY.trim() !== '') {
+      q.set('targetX', targetX.trim());
+      q.set('targetY', targetY.trim());
+    }
+    setBusy(true);
+    const res = await postText<StoredTrack>(`/api/v1/campaigns/${campaignId}/trials/${trialId}/tracks?${q}`, bytes, 'application/octet-stream');
+    setBusy(false);
+    if (!res.ok) return setError(res.error);
+    setResult(res.data);
+    router.refresh();
+  }
+
   async function upload(e: React.FormEvent) {
     e.preventDefault();
     setError(null);
+    if (format === 'mcap') return uploadMcap();
     for (const role of ['time', 'x', 'y', 'z'] as const) {
       if (!columns[role]) return setError({ code: 'invalid_input', field: role, message: `choose the column that holds ${role}` });
     }
@@ -85,8 +117,31 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
   return (
     <div className="track-upload">
       <form onSubmit={upload} noValidate>
-        <label htmlFor={`${prefix}-file`}>Motion track of run {runNumber} (CSV)</label>
-        <input id={`${prefix}-file`} type="file" accept=".csv,text/csv,text/plain" onChange={(e) => void choose(e.target.files?.[0])} />
+        <label htmlFor={`${prefix}-file`}>Motion track of run {runNumber} (CSV, or an MCAP log)</label>
+        <input id={`${prefix}-file`} type="file" accept=".csv,.mcap,text/csv,text/plain" onChange={(e) => void choose(e.target.files?.[0])} />
+        {format === 'mcap' && bytes ? (
+          <>
+            <div className="row" style={{ marginTop: '0.6rem' }}>
+              <div>
+                <label htmlFor={`${prefix}-topic`}>Pose topic</label>
+                <input id={`${prefix}-topic`} value={topic} onChange={(e) => setTopic(e.target.value)} placeholder="/robot/pose" aria-invalid={error?.field === 'topic' || undefined} />
+              </div>
+              <div>
+                <label htmlFor={`${prefix}-mtx`}>Target x (m, optional)</label>
+                <input id={`${prefix}-mtx`} inputMode="decimal" value={targetX} onChange={(e) => setTargetX(e.target.value)} />
+              </div>
+              <div>
+                <label htmlFor={`${prefix}-mty`}>Target y (m, optional)</label>
+                <input id={`${prefix}-mty`} inputMode="decimal" value={targetY} onChange={(e) => setTargetY(e.target.value)} />
+              </div>
+            </div>
+            <p>
+              <button type="submit" className="btn" disabled={busy}>
+                Compute hops and store track
+              </button>
+            </p>
+          </>
+        ) : null}
         {header.length ? (
           <>
             <div className="row" style={{ marginTop: '0.6rem' }}>
@@ -137,12 +192,27 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
         ) : null}
       </form>
       <ErrorBox error={error} />
-      {result ? <TrackResult result={result} csv={text} columns={columns} lengthUnit={lengthUnit} timeUnit={timeUnit} /> : null}
+      {result ? <TrackResult result={result} samples={result.profile ? { t: result.profile.t, z: result.profile.z, length: result.profile.t.length } : csvSamples(text, columns, lengthUnit, timeUnit)} /> : null}
     </div>
   );
 }
 
-function TrackResult({ result, csv, columns, lengthUnit, timeUnit }: { result: StoredTrack; csv: string; columns: { time: string; x: string; y: string; z: string }; lengthUnit: 'm' | 'mm'; timeUnit: 's' | 'ms' }) {
+interface HeightSamples {
+  t: ArrayLike<number>;
+  z: ArrayLike<number>;
+  length: number;
+}
+
+/** Samples of the chosen CSV in s and m, for the plot (null when the file cannot be read). */
+function csvSamples(csv: string, columns: { time: string; x: string; y: string; z: string }, lengthUnit: 'm' | 'mm', timeUnit: 's' | 'ms'): HeightSamples | null {
+  try {
+    return parseTrackCsv(new TextEncoder().encode(csv), columns, { timeScale: timeUnit === 'ms' ? 1e-3 : 1, lengthScale: lengthUnit === 'mm' ? 1e-3 : 1 });
+  } catch {
+    return null;
+  }
+}
+
+function TrackResult({ result, samples }: { result: StoredTrack; samples: HeightSamples | null }) {
   const { hops, summary, warnings } = result.metrics;
   return (
     <div data-testid="track-result">
@@ -160,7 +230,7 @@ function TrackResult({ result, csv, columns, lengthUnit, timeUnit }: { result: S
           {w}
         </div>
       ))}
-      <TrackPlot csv={csv} columns={columns} lengthUnit={lengthUnit} timeUnit={timeUnit} hops={hops} ground={summary.groundLevel} />
+      {samples ? <TrackPlot samples={samples} hops={hops} ground={summary.groundLevel} /> : null}
       <HopTable hops={hops} />
     </div>
   );
@@ -225,13 +295,7 @@ const PAD = { left: 48, right: 12, top: 12, bottom: 32 };
 const PLOT_BUCKETS = 600;
 
 /** z(t) of the track with each hop's flight phase shaded and its apex marked; plain SVG. */
-export function TrackPlot({ csv, columns, lengthUnit, timeUnit, hops, ground }: { csv: string; columns: { time: string; x: string; y: string; z: string }; lengthUnit: 'm' | 'mm'; timeUnit: 's' | 'ms'; hops: Hop[]; ground: number }) {
-  let samples: { t: Float64Array; z: Float64Array; length: number };
-  try {
-    samples = parseTrackCsv(new TextEncoder().encode(csv), columns, { timeScale: timeUnit === 'ms' ? 1e-3 : 1, lengthScale: lengthUnit === 'mm' ? 1e-3 : 1 });
-  } catch {
-    return null;
-  }
+export function TrackPlot({ samples, hops, ground }: { samples: HeightSamples; hops: Hop[]; ground: number }) {
   const n = samples.length;
   if (n < 2) return null;
   const t0 = samples.t[0]!;

@@ -34,11 +34,11 @@ export async function callApi<T>(url: string, method: 'GET' | 'POST', body?: unk
 
 export const postJson = <T,>(url: string, body: unknown, headers?: Record<string, string>) => callApi<T>(url, 'POST', body, headers);
 
-/** POST a text body (e.g. a CSV file) with query parameters; the answer is JSON like callApi's. */
-export async function postText<T>(url: string, text: string, contentType = 'text/csv'): Promise<ApiResult<T>> {
+/** POST a file's content (CSV text or the bytes of a log) with query parameters; the answer is JSON like callApi's. */
+export async function postText<T>(url: string, body: string | ArrayBuffer | Blob, contentType = 'text/csv'): Promise<ApiResult<T>> {
   let res: Response;
   try {
-    res = await fetch(url, { method: 'POST', headers: { 'content-type': contentType }, body: text });
+    res = await fetch(url, { method: 'POST', headers: { 'content-type': contentType }, body });
   } catch {
     return { ok: false, status: 0, error: { code: 'offline', message: 'the server could not be reached; check the network and try again', field: null } };
   }

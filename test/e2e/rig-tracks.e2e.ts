@@ -7,6 +7,7 @@
  * Ballistic relations of the synthetic track: a 0.20 m apex needs 1.98 m/s vertical takeoff speed and
  * about 0.40 s of flight (common practice, no source). Screenshots: test-results/rig-*.png.
  */
+import { McapWriter, type IWritable } from '@mcap/core';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launchBrowser, screenshot, startApp, tabletPage, type RunningApp } from './harness';
@@ -35,6 +36,34 @@ function ballisticTrackCsv(apex: number, hops: number, forwardSpeed: number): st
     lines.push(`${(t * 1000).toFixed(3)},${(x * 1000).toFixed(4)},0,${(z * 1000).toFixed(4)}`);
   }
   return lines.join('\n') + '\n';
+}
+
+/** The same track as an MCAP log: JSON pose messages on /robot/pose, metres and seconds. */
+async function ballisticTrackMcap(apex: number, hops: number, forwardSpeed: number): Promise<Buffer> {
+  const parts: Uint8Array[] = [];
+  let size = 0n;
+  const sink: IWritable = {
+    write: async (b: Uint8Array) => {
+      parts.push(b.slice());
+      size += BigInt(b.byteLength);
+    },
+    position: () => size,
+  };
+  const writer = new McapWriter({ writable: sink, chunkSize: 8192 });
+  await writer.start({ profile: '', library: 'saltus test' });
+  const schemaId = await writer.registerSchema({ name: 'pose', encoding: 'jsonschema', data: new TextEncoder().encode('{"type":"object"}') });
+  const channel = await writer.registerChannel({ topic: '/robot/pose', schemaId, messageEncoding: 'json', metadata: new Map() });
+  const rows = ballisticTrackCsv(apex, hops, forwardSpeed).trim().split('\n').slice(1);
+  let sequence = 0;
+  for (const row of rows) {
+    const [tMs, x, y, z] = row.split(',').map(Number);
+    const t = tMs! / 1000;
+    const logTime = BigInt(Math.round(t * 1e6)) * 1000n;
+    const message = { t, pose: { position: { x: x! / 1000, y: y! / 1000, z: z! / 1000 } } };
+    await writer.addMessage({ channelId: channel, sequence: sequence++, logTime, publishTime: logTime, data: new TextEncoder().encode(JSON.stringify(message)) });
+  }
+  await writer.end();
+  return Buffer.concat(parts);
 }
 
 describe('tracks, corrections and import at the rig page', () => {
@@ -151,6 +180,22 @@ describe('tracks, corrections and import at the rig page', () => {
     const runs = await api<{ runs: { source: string; state: string }[] }>(`/api/v1/campaigns/${campaignId}/runs`);
     expect(runs.runs.filter((r) => r.source === 'import').map((r) => r.state)).toEqual(['done', 'failed']);
     await screenshot(page, 'rig-import');
+  });
+
+  it('4 · reads the hops from an MCAP log for a chosen topic', async () => {
+    await page.goto(rigUrl);
+    await page.getByRole('button', { name: /^Add a motion track to run \d+/ }).first().click();
+    await page.getByLabel(/Motion track of run/).setInputFiles({ name: 'hops.mcap', mimeType: 'application/octet-stream', buffer: await ballisticTrackMcap(0.15, 3, 0.4) });
+    await page.getByLabel('Pose topic').fill('/robot/imu');
+    await page.getByRole('button', { name: 'Compute hops and store track' }).click();
+    await expect.poll(() => page.getByTestId('error').innerText(), { timeout: 15_000 }).toMatch(/\/robot\/pose/);
+    await page.getByLabel('Pose topic').fill('/robot/pose');
+    await page.getByRole('button', { name: 'Compute hops and store track' }).click();
+    const table = page.getByTestId('hop-table');
+    await expect.poll(() => table.locator('tbody tr').count(), { timeout: 20_000 }).toBe(3);
+    for (const c of await table.locator('tbody tr td:nth-child(6)').allInnerTexts()) expect(Number(c)).toBeCloseTo(150, -1);
+    expect(await page.getByTestId('track-plot').locator('rect[data-hop]').count()).toBe(3);
+    await screenshot(page, 'rig-track-mcap');
     expect(errors).toEqual([]);
   });
 });

@@ -14,7 +14,8 @@ import { createCampaign, getCampaign } from '@/server/repos/campaigns';
 import { importTrials } from '@/server/repos/imports';
 import { getTrial, logTrial } from '@/server/repos/rig-log';
 import { commitDesign, listRuns } from '@/server/repos/runs';
-import { storeTrack } from '@/server/repos/tracks';
+import { storeMcapTrack, storeTrack } from '@/server/repos/tracks';
+import { McapWriter, type IWritable } from '@mcap/core';
 import { amendTrial } from '@/server/repos/trials';
 import { freshDatabase } from './database';
 
@@ -62,6 +63,48 @@ function ballisticTrackCsv(apex: number, hops: number, forwardSpeed: number): st
     else lines.push(`${(t * 1000).toFixed(3)},${(x * 1000).toFixed(4)},0,${(z * 1000).toFixed(4)}`);
   }
   return lines.join('\n') + '\n';
+}
+
+/** An in-memory sink for @mcap/core's writer. */
+class MemoryWritable implements IWritable {
+  private parts: Uint8Array[] = [];
+  private size = 0n;
+  async write(buffer: Uint8Array): Promise<void> {
+    this.parts.push(buffer.slice());
+    this.size += BigInt(buffer.byteLength);
+  }
+  position(): bigint {
+    return this.size;
+  }
+  bytes(): Uint8Array {
+    const out = new Uint8Array(Number(this.size));
+    let at = 0;
+    for (const p of this.parts) {
+      out.set(p, at);
+      at += p.byteLength;
+    }
+    return out;
+  }
+}
+
+/** The same ballistic track as an MCAP log: JSON pose messages on /robot/pose, metres and seconds. */
+async function ballisticTrackMcap(apex: number, hops: number, forwardSpeed: number): Promise<Uint8Array> {
+  const rows = ballisticTrackCsv(apex, hops, forwardSpeed).trim().split('\n').slice(1).map((l) => l.split(','));
+  const sink = new MemoryWritable();
+  const writer = new McapWriter({ writable: sink, chunkSize: 8192 });
+  await writer.start({ profile: '', library: 'saltus test' });
+  const schemaId = await writer.registerSchema({ name: 'pose', encoding: 'jsonschema', data: new TextEncoder().encode('{"type":"object"}') });
+  const channel = await writer.registerChannel({ topic: '/robot/pose', schemaId, messageEncoding: 'json', metadata: new Map() });
+  let sequence = 0;
+  for (const [tMs, x, y, z] of rows) {
+    if (x === '' || z === '') continue;
+    const t = Number(tMs) / 1000;
+    const message = { pose: { position: { x: Number(x) / 1000, y: Number(y) / 1000, z: Number(z) / 1000 }, orientation: { x: 0, y: 0, z: 0, w: 1 } }, t };
+    const logTime = BigInt(Math.round(t * 1e6)) * 1000n;
+    await writer.addMessage({ channelId: channel, sequence: sequence++, logTime, publishTime: logTime, data: new TextEncoder().encode(JSON.stringify(message)) });
+  }
+  await writer.end();
+  return sink.bytes();
 }
 
 describe('rig page server side on a real database', () => {
@@ -202,6 +245,18 @@ describe('rig page server side on a real database', () => {
     expect(second.kept[0]).toMatchObject({ name: 'apex_height', typed: 199 });
     const after = await getTrial(campaignId, typed.id);
     expect(after.observations.find((o) => o.name === 'apex_height')!.value).toBe(199);
+
+    // The same hops from an MCAP log of one chosen topic.
+    const mcap = await ballisticTrackMcap(0.2, 3, 0.5);
+    const fromLog = await storeMcapTrack(campaignId, typed.id, mcap, { topic: '/robot/pose', fileName: 'hop3.mcap' }, 'tester');
+    expect(fromLog.metrics.hops).toHaveLength(3);
+    for (const hop of fromLog.metrics.hops) expect(hop.apexHeight).toBeCloseTo(0.2, 2);
+    expect(fromLog.profile.t.length).toBeGreaterThan(100);
+    expect(Math.max(...fromLog.profile.z)).toBeCloseTo(0.2, 2);
+    const wrongTopic = await rejection(storeMcapTrack(campaignId, typed.id, mcap, { topic: '/robot/imu' }, 'tester'));
+    expect(wrongTopic.field).toBe('topic');
+    expect(wrongTopic.message).toMatch(/\/robot\/pose/);
+    expect((await getTrial(campaignId, typed.id)).tracks).toHaveLength(2);
 
     const bad = await rejection(storeTrack(campaignId, typed.id, csv, { time: 'time_ms', x: 'pos_x', y: 'pos_y', z: 'height', lengthUnit: 'mm', timeUnit: 'ms' }, 'tester'));
     expect(bad.code).toBe('invalid_input');

@@ -2,11 +2,12 @@
  * Route handlers of the rig page: the combined idempotent log entry, one trial, a trial's motion
  * track, and the import of past trials. Parse, call the repository, answer.
  */
+import { z } from 'zod';
 import { DomainError } from '@/domain/errors';
 import { trialImportSchema, trialLogSchema } from '@/server/api/schemas/rig';
 import { importTrials } from '@/server/repos/imports';
 import { getTrial, logTrial } from '@/server/repos/rig-log';
-import { storeTrack, type TrackUpload } from '@/server/repos/tracks';
+import { storeMcapTrack, storeTrack, type TrackUpload } from '@/server/repos/tracks';
 import { jsonResponse, readJson, readText } from './http';
 import { trackQuerySchema } from './tracks';
 import { parseWith } from './validation';
@@ -30,9 +31,48 @@ export const logTrialHandler = async (req: Request, p: Record<string, string>) =
 
 export const getTrialHandler = async (_req: Request, p: Record<string, string>) => ({ trial: await getTrial(p.id!, p.trialId!) });
 
+const optionalQueryNumber = z
+  .string()
+  .trim()
+  .optional()
+  .transform((s, ctx) => {
+    if (s === undefined || s === '') return undefined;
+    const v = Number(s);
+    if (!Number.isFinite(v)) {
+      ctx.addIssue({ code: 'custom', message: `'${s}' is not a number` });
+      return z.NEVER;
+    }
+    return v;
+  });
+
+const mcapQuerySchema = z.object({
+  topic: z.string().trim().min(1, 'name the topic that carries the robot pose, e.g. /robot/pose'),
+  massGrams: optionalQueryNumber.refine((v) => v === undefined || v > 0, 'the mass must be > 0 g'),
+  energyJoules: optionalQueryNumber.refine((v) => v === undefined || v >= 0, 'the energy must be ≥ 0 J'),
+  targetX: optionalQueryNumber,
+  targetY: optionalQueryNumber,
+  fileName: z.string().max(200).optional(),
+});
+
+async function readBytes(req: Request, maxBytes: number): Promise<Uint8Array> {
+  const declared = Number(req.headers.get('content-length') ?? '0');
+  const tooLarge = () => new DomainError('invalid_input', `the file is larger than ${Math.round(maxBytes / 1024 / 1024)} MiB; send a shorter log`, '(body)');
+  if (declared > maxBytes) throw tooLarge();
+  const bytes = new Uint8Array(await req.arrayBuffer());
+  if (bytes.length > maxBytes) throw tooLarge();
+  return bytes;
+}
+
 export const storeTrackHandler = async (req: Request, p: Record<string, string>) => {
-  const csv = await readText(req, MAX_TRIAL_TRACK_BYTES);
   const params = new URL(req.url).searchParams;
+  if (params.get('format') === 'mcap') {
+    const raw: Record<string, string> = {};
+    for (const [k, v] of params) if (k !== 'format') raw[k] = v;
+    const q = parseWith(mcapQuerySchema, raw);
+    const bytes = await readBytes(req, MAX_TRIAL_TRACK_BYTES);
+    return jsonResponse(await storeMcapTrack(p.id!, p.trialId!, bytes, q), 201);
+  }
+  const csv = await readText(req, MAX_TRIAL_TRACK_BYTES);
   const raw: Record<string, string> = {};
   for (const [k, v] of params) if (k !== 'fileName') raw[k] = v;
   const q = parseWith(trackQuerySchema, raw);
