@@ -29,8 +29,16 @@ function originalOf(trial: RigTrialItem, field: string): string | null {
   return first ? first.oldValue : null;
 }
 
-function Corrected({ trial, field, current }: { trial: RigTrialItem; field: string; current: string }) {
-  const original = originalOf(trial, field);
+/** A stored number for display: at most 6 significant digits (the database keeps full precision). */
+function shown(value: string): string {
+  const n = Number(value);
+  return value.trim() !== '' && Number.isFinite(n) ? String(Number(n.toPrecision(6))) : value;
+}
+
+function Corrected({ trial, field, current: raw }: { trial: RigTrialItem; field: string; current: string }) {
+  const current = shown(raw);
+  const stored = originalOf(trial, field);
+  const original = stored === null ? null : shown(stored);
   if (original === null || original === current) return <>{current || '—'}</>;
   const reasons = trial.amendments.filter((a) => a.field === field).map((a) => a.reason);
   return (

@@ -348,7 +348,7 @@ export function TrackPlot({ samples, hops, ground }: { samples: HeightSamples; h
         <text x={PLOT_W - PAD.right} y={PLOT_H - 10} fontSize={10} textAnchor="end">
           {fmt(t1)} s
         </text>
-        <text x={12} y={PAD.top + 8} fontSize={10}>
+        <text x={PAD.left + 6} y={PAD.top + 10} fontSize={10}>
           z (mm)
         </text>
       </svg>
