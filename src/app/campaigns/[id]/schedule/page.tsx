@@ -37,6 +37,8 @@ export default async function SchedulePage({ params, searchParams }: { params: P
   const rigIdByName = new Map(campaign.rigs.map((r) => [r.name, r.id]));
   const weekFrom = from ?? plan.firstOpenDay;
   const grid = campaign.rigs.length ? weekGrid(plan.request, plan.result, weekFrom, 7) : null;
+  // Days on which no rig works and nothing is planned (a weekend) are left out to give the others room.
+  const shownDays = grid ? grid.days.map((d, j) => ({ d, j })).filter(({ j }) => grid.cells[j]!.some((c) => c.available.length > 0 || c.rows.length > 0)) : [];
 
   // Whole plots (and lone runs) that may still move, with where they stand now.
   const plots: MovablePlot[] = [];
@@ -77,7 +79,8 @@ export default async function SchedulePage({ params, searchParams }: { params: P
           </div>
           <p className="muted">
             {plan.result.assignments.length} trials placed, {plan.result.changeovers} changeovers ({Math.round(plan.result.changeoverMinutesTotal)} min)
-            {plan.result.unscheduled.length ? `; ${plan.result.unscheduled.length} runs not placed yet` : ''}. Times in {grid.timeZone}.
+            {plan.result.unscheduled.length ? `; ${plan.result.unscheduled.length} runs not placed yet` : ''}. Times in {grid.timeZone}
+            {shownDays.length < grid.days.length ? `; days when no rig works are left out` : ''}.
           </p>
           <div className="legend-row" aria-hidden="true">
             <span className="slot-block trial">trial</span>
@@ -89,7 +92,7 @@ export default async function SchedulePage({ params, searchParams }: { params: P
               <thead>
                 <tr>
                   <th className="rig">Rig</th>
-                  {grid.days.map((d) => (
+                  {shownDays.map(({ d }) => (
                     <th key={d}>{dayTitle(d)}</th>
                   ))}
                 </tr>
@@ -100,7 +103,7 @@ export default async function SchedulePage({ params, searchParams }: { params: P
                     <th className="rig" scope="row">
                       {rigName}
                     </th>
-                    {grid.days.map((d, j) => {
+                    {shownDays.map(({ d, j }) => {
                       const cell = grid.cells[j]![k]!;
                       return (
                         <td key={d} className={cell.available.length ? undefined : 'off'} data-rig={rigName} data-day={d}>
