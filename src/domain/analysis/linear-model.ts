@@ -55,18 +55,22 @@ function partialSs(fit: LeastSquaresFit, positions: number[]): number {
 
 /** Pure-error sum of squares from runs that share the same factor setting. */
 function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number; groups: number } {
-  // Group by a numeric hash of the setting, then split any hash collisions by exact comparison.
+  // Group by a numeric hash of the setting; a hash shared by different settings (rare) falls back
+  // to an exact text key.
   const buf = new Float64Array(1);
   const bits = new Uint32Array(buf.buffer);
-  const byHash = new Map<number, number[][]>();
   const cols = frame.factorColumns;
   const k = cols.length;
+  const n = frame.n;
   const same = (a: number, b: number) => {
     for (let j = 0; j < k; j++) if (cols[j]![a] !== cols[j]![b]) return false;
     return true;
   };
-  let groupsCount = 0;
-  for (let i = 0; i < frame.n; i++) {
+  const groupOf = new Int32Array(n);
+  const firstOfHash = new Map<number, number>();
+  const byText = new Map<string, number>();
+  const representative: number[] = [];
+  for (let i = 0; i < n; i++) {
     let h = 0x811c9dc5;
     for (let j = 0; j < k; j++) {
       const v = cols[j]![i]!;
@@ -74,28 +78,44 @@ function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number
       h = Math.imul(h ^ bits[0]!, 0x01000193) >>> 0;
       h = Math.imul(h ^ bits[1]!, 0x01000193) >>> 0;
     }
-    const bucket = byHash.get(h);
-    if (!bucket) {
-      byHash.set(h, [[i]]);
-      groupsCount++;
-      continue;
+    const g = firstOfHash.get(h);
+    if (g === undefined) {
+      firstOfHash.set(h, representative.length);
+      groupOf[i] = representative.length;
+      representative.push(i);
+    } else if (same(representative[g]!, i)) {
+      groupOf[i] = g;
+    } else {
+      const key = Array.from({ length: k }, (_, j) => cols[j]![i]! + 0).join('|');
+      let t = byText.get(key);
+      if (t === undefined) {
+        t = representative.length;
+        byText.set(key, t);
+        representative.push(i);
+      }
+      groupOf[i] = t;
     }
-    const g = bucket.find((members) => same(members[0]!, i));
-    if (g) g.push(i);
-    else {
-      bucket.push([i]);
-      groupsCount++;
-    }
+  }
+  const groups = representative.length;
+  if (groups === n) return { ss: 0, df: 0, groups };
+  // Two passes per group: mean, then squared deviations with the usual correction term.
+  const count = new Float64Array(groups);
+  const sum = new Float64Array(groups);
+  for (let i = 0; i < n; i++) {
+    count[groupOf[i]!]++;
+    sum[groupOf[i]!] += y[i]!;
+  }
+  const dev = new Float64Array(groups);
+  const sq = new Float64Array(groups);
+  for (let i = 0; i < n; i++) {
+    const g = groupOf[i]!;
+    const d = y[i]! - sum[g]! / count[g]!;
+    dev[g] += d;
+    sq[g] += d * d;
   }
   let ss = 0;
-  for (const bucket of byHash.values()) {
-    for (const idx of bucket) {
-      if (idx.length < 2) continue;
-      const ys = idx.map((i) => y[i]!);
-      ss += sumOfSquaredDeviations(ys, accurateMean(ys));
-    }
-  }
-  return { ss, df: frame.n - groupsCount, groups: groupsCount };
+  for (let g = 0; g < groups; g++) if (count[g]! > 1) ss += sq[g]! - (dev[g]! * dev[g]!) / count[g]!;
+  return { ss, df: n - groups, groups };
 }
 
 /**
