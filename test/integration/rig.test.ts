@@ -11,6 +11,7 @@ import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { trialImportSchema, trialLogSchema } from '@/server/api/schemas/rig';
 import { closeDb, db } from '@/server/db/client';
 import { createCampaign, getCampaign } from '@/server/repos/campaigns';
+import { campaignData } from '@/server/repos/analyses';
 import { importTrials } from '@/server/repos/imports';
 import { getTrial, logTrial } from '@/server/repos/rig-log';
 import { commitDesign, listRuns } from '@/server/repos/runs';
@@ -307,6 +308,12 @@ describe('rig page server side on a real database', () => {
       const runs = await listRuns(campaignId);
       expect(runs.filter((r) => r.source === 'import').every((r) => r.state === 'done' || r.state === 'failed')).toBe(true);
       expect((await getCampaign(campaignId)).responses).toHaveLength(4);
+    });
+
+    it('feeds the imported trials to the campaign data that fits and proposals use', async () => {
+      const { rows } = await campaignData(campaignId);
+      const imported = rows.filter((r) => r.apex_height === 182 && r.payload === 0.5 && r.gain === 1);
+      expect(imported.length).toBeGreaterThanOrEqual(2);
     });
   });
 });
