@@ -162,7 +162,7 @@ describe('the trial loop on a tablet', () => {
     await page.getByRole('button', { name: 'Suggest a batch' }).click();
     const batch = page.getByTestId('surrogate-batch');
     await batch.waitFor({ timeout: 60_000 });
-    expect(await batch.locator('tbody tr').count()).toBe(3);
+    expect(await batch.getByRole('checkbox', { name: 'Add this trial' }).count()).toBe(3);
     expect(await batch.innerText()).toMatch(/Gaussian process/);
     await screenshot(page, 'loop-7-surrogate');
     expect(errors).toEqual([]);
