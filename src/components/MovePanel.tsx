@@ -35,9 +35,13 @@ export function MovePanel({ campaignId, plots, rigs, factors }: { campaignId: st
   const router = useRouter();
   const [key, setKey] = useState(plots[0]?.key ?? '');
   const plot = plots.find((p) => p.key === key) ?? plots[0];
-  const [rigId, setRigId] = useState(plot?.rigId ?? rigs[0]?.id ?? '');
-  const [day, setDay] = useState(plot?.day ?? '');
-  const [time, setTime] = useState(plot?.time ?? '09:00');
+  // Empty until chosen: the plot's current place fills in (also when plots arrive after a re-render).
+  const [rigChoice, setRigId] = useState('');
+  const [dayChoice, setDay] = useState('');
+  const [timeChoice, setTime] = useState('');
+  const rigId = rigChoice || plot?.rigId || rigs[0]?.id || '';
+  const day = dayChoice || plot?.day || '';
+  const time = timeChoice || plot?.time || '09:00';
   const [order, setOrder] = useState('design');
   const [error, setError] = useState<ApiError | null>(null);
   const [done, setDone] = useState<string | null>(null);
@@ -54,9 +58,9 @@ export function MovePanel({ campaignId, plots, rigs, factors }: { campaignId: st
     setKey(k);
     setOrder('design');
     if (p) {
-      setRigId(p.rigId);
-      setDay(p.day);
-      setTime(p.time);
+      setRigId('');
+      setDay('');
+      setTime('');
     }
   }
 

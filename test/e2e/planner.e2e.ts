@@ -86,6 +86,8 @@ describe('planner page and week grid on a tablet', () => {
 
   it('3 · refuses sorting the runs inside a whole plot and says why, then moves the plot as it is', async () => {
     const panel = page.getByTestId('move-panel');
+    // The form opens on the first plot's current rig, day and time.
+    expect(await panel.getByLabel('New day').inputValue()).toBe(firstDay);
     const plots = await panel.getByLabel('Whole plot').locator('option').all();
     let chosen = '';
     for (const option of plots) {
