@@ -72,6 +72,38 @@ describe('the stored plan as a schedule request and result', () => {
   });
 });
 
+describe('deriveActivities', () => {
+  it('adds up the minutes of every hard-to-change factor that changes, and lists each change', () => {
+    const request = {
+      runs: [
+        { id: 'a', values: { surface: 'turf', leg: 'short', payload: 0 } },
+        { id: 'b', values: { surface: 'glass', leg: 'long', payload: 1 } },
+        { id: 'c', values: { surface: 'glass', leg: 'long', payload: 0 } },
+      ],
+      rigs: [{ name: 'R', available: [{ start: '2026-01-05T08:00:00Z', end: '2026-01-05T16:00:00Z' }] }],
+      changeoverMinutes: { surface: 40, leg: 15, payload: 0 },
+    };
+    const acts = deriveActivities(request, [
+      { runId: 'a', rig: 'R', start: '2026-01-05T08:00:00Z', end: '2026-01-05T08:20:00Z' },
+      { runId: 'b', rig: 'R', start: '2026-01-05T09:30:00Z', end: '2026-01-05T09:50:00Z' },
+      { runId: 'c', rig: 'R', start: '2026-01-05T09:50:00Z', end: '2026-01-05T10:10:00Z' },
+    ]);
+    expect(acts).toEqual([
+      {
+        rig: 'R',
+        kind: 'changeover',
+        start: '2026-01-05T08:35:00.000Z',
+        end: '2026-01-05T09:30:00.000Z',
+        beforeRunId: 'b',
+        changes: [
+          { factor: 'surface', from: 'turf', to: 'glass' },
+          { factor: 'leg', from: 'short', to: 'long' },
+        ],
+      },
+    ]);
+  });
+});
+
 describe('manual moves on the stored plan', () => {
   it('refuses runs sorted inside a whole plot, naming runOrder and saying why', () => {
     const view = planView(base);
