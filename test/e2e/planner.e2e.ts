@@ -146,12 +146,15 @@ describe('planner page and week grid on a tablet', () => {
     expect(placed).toBeGreaterThan(0);
     const [download] = await Promise.all([page.waitForEvent('download'), section.getByRole('link', { name: 'iCalendar file' }).click()]);
     expect(download.suggestedFilename()).toMatch(/\.ics$/);
-    const ics = readFileSync((await download.path())!, 'utf8');
+    // Unfold content lines (RFC 5545 §3.1) before reading them.
+    const ics = readFileSync((await download.path())!, 'utf8').replace(/\r\n[ \t]/g, '');
     expect(ics.startsWith('BEGIN:VCALENDAR')).toBe(true);
     expect(ics.trimEnd().endsWith('END:VCALENDAR')).toBe(true);
     const trials = ics.match(/^UID:trial-/gm) ?? [];
     const changeovers = ics.match(/^UID:changeover-/gm) ?? [];
     expect(trials).toHaveLength(placed);
+    // UIDs carry the campaign, so another campaign's run of the same number on this rig stays a separate event.
+    expect(ics.match(/^UID:.*@saltus$/gm)!.every((uid) => uid.includes(id))).toBe(true);
     expect(ics.match(/^BEGIN:VEVENT/gm)).toHaveLength(placed + changeovers.length);
     expect(errors).toEqual([]);
   });

@@ -1,5 +1,6 @@
 /** Route handlers of the week plan: grid, day sheet, per-rig iCalendar file, manual moves. */
 import { daySheet, rigCalendar, weekGrid } from '@/domain/schedule';
+import { scopeCalendarUids } from '@/server/plan/calendar-scope';
 import { daySheetQuerySchema, planMoveSchema, planSpanSchema } from '@/server/api/schemas/plan';
 import { loadPlan, moveWholePlot, rigOf } from '@/server/repos/week-plan';
 import { readJson } from './http';
@@ -27,7 +28,8 @@ export const rigCalendarHandler = async (req: Request, p: Record<string, string>
   const q = query(req);
   const plan = await loadPlan(p.id!);
   const rig = rigOf(plan, q.rig ?? null);
-  const text = rigCalendar(plan.request, plan.result, rig.name, { includeActivities: q.activities !== '0', name: `${plan.campaign.name} – ${rig.name}` });
+  // UIDs scoped to the campaign: two campaigns on the same rig both have a "run 12".
+  const text = scopeCalendarUids(rigCalendar(plan.request, plan.result, rig.name, { includeActivities: q.activities !== '0', name: `${plan.campaign.name} – ${rig.name}` }), plan.campaign.id);
   const file = `${rig.name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'rig'}.ics`;
   return new Response(text, {
     status: 200,

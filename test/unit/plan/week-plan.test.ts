@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { DomainError } from '@/domain/errors';
 import { RANDOMISATION_RESTRICTION_MESSAGE, rigCalendar, weekGrid } from '@/domain/schedule';
+import { scopeCalendarUids } from '@/server/plan/calendar-scope';
 import { checkMove, deriveActivities, planView, type PlanInput, type PlanRun } from '@/server/plan/week-plan';
 
 // Europe/Berlin in January is UTC+1: 09:00 local = 08:00Z. 2026-01-05 is a Monday.
@@ -69,6 +70,9 @@ describe('the stored plan as a schedule request and result', () => {
     expect(ics.startsWith('BEGIN:VCALENDAR')).toBe(true);
     expect(ics.match(/BEGIN:VEVENT/g)).toHaveLength(5);
     expect(rigCalendar(view.request, view.result, 'Bench 1', { includeActivities: false }).match(/BEGIN:VEVENT/g)).toHaveLength(4);
+    const scoped = scopeCalendarUids(ics, 'campaign7');
+    expect(scoped.match(/BEGIN:VEVENT/g)).toHaveLength(5);
+    expect(scoped.match(/^UID:.*-campaign7@saltus\r?$/gm)).toHaveLength(5);
   });
 });
 
