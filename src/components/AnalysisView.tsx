@@ -9,6 +9,7 @@ export interface FindingsPlotsData {
   normal: { x: number; y: number }[];
   contour: { factorX: string; factorY: string; x: number[]; y: number[]; z: number[][]; held: Record<string, string | number>; points: { x: number; y: number }[] } | null;
   interaction: { factorA: string; factorB: string; levelsA: (number | string)[]; lines: { levelB: number | string; predicted: number[] }[]; held: Record<string, string | number> } | null;
+  halfNormal?: { points: { label: string; absEffect: number; quantile: number }[]; me: number | null; sme: number | null; active: string[] } | null;
   surface: {
     stationary: { natural: Record<string, number>; predicted: number } | null;
     canonical: { eigenvalues: number[]; kind: string };
@@ -97,6 +98,15 @@ function FindingsPlots({ response, plots }: { response: string; plots: FindingsP
             points={plots.contour.points}
             xLabel={plots.contour.factorX}
             yLabel={plots.contour.factorY}
+          />
+        ) : null}
+        {plots.halfNormal ? (
+          <ScatterPlot
+            title={`Half-normal plot of effects${plots.halfNormal.me !== null ? ` (dashed: Lenth's margin of error ${Number(plots.halfNormal.me.toPrecision(3))})` : ''}`}
+            points={plots.halfNormal.points.map((p) => ({ x: p.quantile, y: p.absEffect, label: p.label }))}
+            xLabel="half-normal quantile"
+            yLabel="|effect|"
+            refLine={plots.halfNormal.me !== null ? { a: plots.halfNormal.me, b: 0 } : undefined}
           />
         ) : null}
         {plots.interaction ? (

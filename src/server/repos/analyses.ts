@@ -6,6 +6,7 @@ import {
   interactionPlot,
   normalQuantile,
   quadraticForm,
+  screeningEffects,
   stationaryPoint,
   type AnalysisResult,
 } from '@/domain/analysis';
@@ -102,7 +103,23 @@ export function findingsPlots(result: AnalysisResult, rows: DataRow[]) {
       surface = null;
     }
   }
-  return { effects, residuals, normal, contour, interaction, surface };
+  return { effects, residuals, normal, contour, interaction, surface, halfNormal: halfNormalOf(result, rows) };
+}
+
+/**
+ * Half-normal plot with Lenth's margins of error, for two-level designs: every factor in the model
+ * numeric with exactly two settings in the data, and no power terms.
+ */
+function halfNormalOf(result: AnalysisResult, rows: DataRow[]) {
+  const used = result.factors.filter((f) => result.terms.some((t) => t.split('*').some((p) => p.split('^')[0] === f.name)));
+  const twoLevel = used.length > 0 && used.every((f) => f.kind !== 'categorical' && new Set(rows.map((r) => Number(r[f.name]))).size === 2);
+  if (!twoLevel || result.terms.some((t) => t.includes('^'))) return null;
+  try {
+    const s = screeningEffects({ data: rows, response: result.response, terms: result.terms, factors: result.factors, coding: 'coded' });
+    return { points: s.halfNormal, me: s.lenth?.me ?? null, sme: s.lenth?.sme ?? null, active: s.effects.filter((e) => e.active).map((e) => e.label) };
+  } catch {
+    return null;
+  }
 }
 
 export type FindingsPlots = ReturnType<typeof findingsPlots>;
