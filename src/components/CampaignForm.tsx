@@ -37,6 +37,14 @@ interface RigDraft {
 const newFactor = (): FactorDraft => ({ name: '', kind: 'continuous', unit: '', low: '', high: '', list: '', hardToChange: false, changeMinutes: '0' });
 const newResponse = (): ResponseDraft => ({ name: '', unit: '', goal: 'maximize', target: '' });
 
+/** The readings most hop trials log; the rig page's plausibility checks know them by these names. */
+const STANDARD_READINGS: ResponseDraft[] = [
+  { name: 'apex_height', unit: 'mm', goal: 'maximize', target: '' },
+  { name: 'hops_completed', unit: 'count', goal: 'maximize', target: '' },
+  { name: 'distance_travelled', unit: 'mm', goal: 'maximize', target: '' },
+  { name: 'energy_drawn', unit: 'mJ', goal: 'minimize', target: '' },
+];
+
 function num(s: string): number | undefined {
   if (s.trim() === '') return undefined;
   const n = Number(s);
@@ -207,7 +215,19 @@ export function CampaignForm() {
         ))}
         <button type="button" className="btn secondary" onClick={() => setResponses([...responses, newResponse()])}>
           Add response
+        </button>{' '}
+        <button
+          type="button"
+          className="btn secondary"
+          onClick={() => {
+            const kept = responses.filter((r) => r.name.trim() !== '');
+            const missing = STANDARD_READINGS.filter((s) => !kept.some((r) => r.name === s.name));
+            setResponses([...kept, ...missing]);
+          }}
+        >
+          Add the standard rig readings
         </button>
+        <p className="muted">Standard rig readings: apex height (mm), hops completed, distance travelled (mm), electrical energy drawn (mJ); the rig log checks them for plausibility.</p>
       </div>
 
       <div className="grid2">
