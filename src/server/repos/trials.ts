@@ -6,7 +6,8 @@
  */
 import { DomainError, invalidInput } from '@/domain/errors';
 import type { ResponseDefinition } from '@/domain/factors';
-import { checkReadings, type TrialReadings } from '@/domain/metrics/plausibility';
+import { checkReadings } from '@/domain/metrics/plausibility';
+import { standardReadings } from '@/domain/metrics/standard-readings';
 import type { z } from 'zod';
 import type { amendmentSchema, trialFinishSchema, trialStartSchema } from '@/server/api/schemas/campaign';
 import { db } from '@/server/db/client';
@@ -17,33 +18,8 @@ export type TrialStart = z.output<typeof trialStartSchema>;
 export type TrialFinish = z.output<typeof trialFinishSchema>;
 export type AmendmentInput = z.output<typeof amendmentSchema>;
 
-const LENGTH_TO_M: Record<string, number> = { m: 1, cm: 0.01, mm: 0.001 };
-const ENERGY_TO_J: Record<string, number> = { J: 1, mJ: 0.001, uJ: 1e-6, 'µJ': 1e-6 };
-
 /** Map a campaign's typed responses onto the standard rig readings the plausibility checks know. */
-export function standardReadings(responses: ResponseDefinition[], observations: Record<string, number>): { readings: TrialReadings; fieldOf: Record<string, string> } {
-  const readings: TrialReadings = {};
-  const fieldOf: Record<string, string> = {};
-  for (const r of responses) {
-    const v = observations[r.name];
-    if (v === undefined) continue;
-    const unit = r.unit ?? '';
-    if (/apex|height/i.test(r.name) && LENGTH_TO_M[unit] !== undefined) {
-      readings.apexHeightM = v * LENGTH_TO_M[unit]!;
-      fieldOf.apexHeightM = r.name;
-    } else if (/energy/i.test(r.name) && ENERGY_TO_J[unit] !== undefined) {
-      readings.energyJ = v * ENERGY_TO_J[unit]!;
-      fieldOf.energyJ = r.name;
-    } else if (/distance|travel/i.test(r.name) && LENGTH_TO_M[unit] !== undefined) {
-      readings.distanceM = v * LENGTH_TO_M[unit]!;
-      fieldOf.distanceM = r.name;
-    } else if (/hops/i.test(r.name)) {
-      readings.hopsCompleted = v;
-      fieldOf.hopsCompleted = r.name;
-    }
-  }
-  return { readings, fieldOf };
-}
+export { standardReadings };
 
 export async function startTrial(campaignId: string, input: TrialStart, idempotencyKey: string | null, actor = 'local', now = new Date()) {
   const client = await db();
