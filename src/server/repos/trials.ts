@@ -5,7 +5,6 @@
  * an amendment: the original value stays.
  */
 import { DomainError, invalidInput } from '@/domain/errors';
-import type { ResponseDefinition } from '@/domain/factors';
 import { checkReadings } from '@/domain/metrics/plausibility';
 import { standardReadings } from '@/domain/metrics/standard-readings';
 import type { z } from 'zod';
