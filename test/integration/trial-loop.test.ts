@@ -133,4 +133,23 @@ describe('campaign loop on a real database', () => {
     expect(replay.run.id).toBe(accepted.run.id);
     expect((await listRuns(campaignId)).length).toBe(before + 1);
   });
+
+  it('reads a campaign with thousands of trials without exceeding the database parameter limit', async () => {
+    const client = await db();
+    const [run] = await listRuns(campaignId);
+    const rows = Array.from({ length: 2500 }, (_, i) => ({
+      campaignId,
+      runId: run!.id,
+      status: 'done',
+      startedAt: new Date(NOW.getTime() - (i + 1) * 60_000),
+      finishedAt: new Date(NOW.getTime() - i * 60_000),
+      idempotencyKey: `bulk-${i}-key`,
+    }));
+    for (let i = 0; i < rows.length; i += 500) await client.trial.createMany({ data: rows.slice(i, i + 500) });
+    const { trialsOf } = await import('@/server/repos/trials');
+    const { campaignData } = await import('@/server/repos/analyses');
+    expect((await trialsOf(campaignId)).length).toBeGreaterThanOrEqual(2500);
+    expect((await campaignData(campaignId)).rows.length).toBeGreaterThanOrEqual(2500);
+    expect((await listRuns(campaignId)).length).toBeGreaterThan(0);
+  });
 });

@@ -16,6 +16,7 @@ import { db } from '@/server/db/client';
 import { audit } from './audit';
 import { domainFactors, getCampaign } from './campaigns';
 import { parseJson } from './mappers';
+import { readAllPaged } from './paged';
 
 export type DataRow = Record<string, number | string>;
 
@@ -23,11 +24,15 @@ export type DataRow = Record<string, number | string>;
 export async function campaignData(campaignId: string): Promise<{ rows: DataRow[]; factors: Factor[] }> {
   const campaign = await getCampaign(campaignId);
   const client = await db();
-  const trials = await client.trial.findMany({
-    where: { campaignId, status: { in: ['done', 'failed'] } },
-    orderBy: { startedAt: 'asc' },
-    include: { observations: true, run: true },
-  });
+  const trials = await readAllPaged((skip, take) =>
+    client.trial.findMany({
+      where: { campaignId, status: { in: ['done', 'failed'] } },
+      orderBy: [{ startedAt: 'asc' }, { id: 'asc' }],
+      skip,
+      take,
+      include: { observations: true, run: true },
+    }),
+  );
   const rows = trials.map((t) => {
     const values = parseJson<DataRow>(t.run.valuesJson, {});
     const row: DataRow = { ...values, run: t.run.runNumber, passed: t.passed === false ? 0 : 1 };

@@ -8,6 +8,7 @@ import { db } from '@/server/db/client';
 import { audit } from './audit';
 import { domainFactors, getCampaign } from './campaigns';
 import { parseJson, toRunView, type RunView } from './mappers';
+import { readAllPaged } from './paged';
 
 export type CampaignDesignInput = z.output<typeof campaignDesignSchema>;
 
@@ -99,14 +100,18 @@ export interface RunRow extends RunView {
 
 export async function listRuns(campaignId: string): Promise<RunRow[]> {
   const client = await db();
-  const runs = await client.run.findMany({
-    where: { campaignId },
-    orderBy: { plannedOrder: 'asc' },
-    include: {
-      slots: { orderBy: { scheduleVersion: 'desc' }, take: 1, include: { rig: true } },
-      trials: { orderBy: { startedAt: 'desc' }, take: 1, include: { observations: true } },
-    },
-  });
+  const runs = await readAllPaged((skip, take) =>
+    client.run.findMany({
+      where: { campaignId },
+      orderBy: [{ plannedOrder: 'asc' }, { id: 'asc' }],
+      skip,
+      take,
+      include: {
+        slots: { orderBy: { scheduleVersion: 'desc' }, take: 1, include: { rig: true } },
+        trials: { orderBy: { startedAt: 'desc' }, take: 1, include: { observations: true } },
+      },
+    }),
+  );
   return runs.map((r) => {
     const trial = r.trials[0];
     const slot = r.slots[0];

@@ -11,6 +11,7 @@ import type { z } from 'zod';
 import type { amendmentSchema, trialFinishSchema, trialStartSchema } from '@/server/api/schemas/campaign';
 import { db } from '@/server/db/client';
 import { audit } from './audit';
+import { readAllPaged } from './paged';
 import { getCampaign } from './campaigns';
 
 export type TrialStart = z.output<typeof trialStartSchema>;
@@ -139,9 +140,13 @@ export async function amendTrial(campaignId: string, trialId: string, input: Ame
 
 export async function trialsOf(campaignId: string) {
   const client = await db();
-  return client.trial.findMany({
-    where: { campaignId },
-    orderBy: { startedAt: 'asc' },
-    include: { observations: true, amendments: { orderBy: { createdAt: 'asc' } }, run: true, rig: true, robot: true },
-  });
+  return readAllPaged((skip, take) =>
+    client.trial.findMany({
+      where: { campaignId },
+      orderBy: [{ startedAt: 'asc' }, { id: 'asc' }],
+      skip,
+      take,
+      include: { observations: true, amendments: { orderBy: { createdAt: 'asc' } }, run: true, rig: true, robot: true },
+    }),
+  );
 }
