@@ -9,19 +9,10 @@ import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
 import { TrackUpload } from './TrackUpload';
+import type { RigTrialView } from '@/server/repos/rig-log';
 
-export interface RigTrialItem {
-  id: string;
-  runNumber: number;
-  status: string;
-  passed: boolean | null;
-  failureReason: string;
-  notes: string;
-  startedAt: string;
-  observations: { name: string; value: number; unit: string; origin: string }[];
-  amendments: { field: string; oldValue: string; newValue: string; reason: string; createdAt: string }[];
-  tracks: { id: string; fileName: string; hopCount: number; createdAt: string }[];
-}
+/** A logged trial as the rig page lists it (the shape the server's rig log answers). */
+export type RigTrialItem = RigTrialView;
 
 /** The value a field had before its first amendment, when it was amended. */
 function originalOf(trial: RigTrialItem, field: string): string | null {

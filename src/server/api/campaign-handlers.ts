@@ -18,10 +18,8 @@ import { addRun, commitDesign, listRuns, previewDesign } from '@/server/repos/ru
 import { listSlots, placeRuns } from '@/server/repos/schedule';
 import { acceptSuggestion, proposeNextTrial, proposeSurrogateBatch } from '@/server/repos/suggestions';
 import { amendTrial, finishTrial, startTrial, trialsOf } from '@/server/repos/trials';
-import { jsonResponse, readJson } from './http';
+import { IDEMPOTENCY_KEY, jsonResponse, readJson } from './http';
 import { parseWith } from './validation';
-
-const KEY = /^[A-Za-z0-9_.:-]{8,100}$/;
 
 export const listCampaignsHandler = async () => ({ campaigns: await listCampaigns() });
 
@@ -58,7 +56,7 @@ export const listTrialsHandler = async (_req: Request, p: Record<string, string>
 
 export const startTrialHandler = async (req: Request, p: Record<string, string>) => {
   const key = req.headers.get('idempotency-key');
-  if (key !== null && !KEY.test(key)) {
+  if (key !== null && !IDEMPOTENCY_KEY.test(key)) {
     throw new DomainError('invalid_input', 'Idempotency-Key must be 8–100 letters, digits or . _ : -', 'Idempotency-Key');
   }
   const input = parseWith(trialStartSchema, await readJson(req));

@@ -15,6 +15,9 @@ const STATUS: Record<DomainError['code'], number> = {
 
 export const MAX_JSON_BYTES = 5 * 1024 * 1024;
 
+/** A client-made Idempotency-Key: 8–100 letters, digits or . _ : - */
+export const IDEMPOTENCY_KEY = /^[A-Za-z0-9_.:-]{8,100}$/;
+
 export function jsonResponse(body: unknown, status = 200, headers: Record<string, string> = {}): Response {
   return new Response(JSON.stringify(body), {
     status,

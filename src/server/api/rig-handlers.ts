@@ -8,11 +8,9 @@ import { trialImportSchema, trialLogSchema } from '@/server/api/schemas/rig';
 import { importTrials } from '@/server/repos/imports';
 import { getTrial, logTrial } from '@/server/repos/rig-log';
 import { storeMcapTrack, storeTrack, type TrackUpload } from '@/server/repos/tracks';
-import { jsonResponse, readJson, readText } from './http';
-import { trackQuerySchema } from './tracks';
+import { IDEMPOTENCY_KEY, jsonResponse, readJson, readText } from './http';
+import { optionalQueryNumber, trackQuerySchema } from './tracks';
 import { parseWith } from './validation';
-
-const KEY = /^[A-Za-z0-9_.:-]{8,100}$/;
 
 /** Largest track stored with a trial, bytes. */
 export const MAX_TRIAL_TRACK_BYTES = 16 * 1024 * 1024;
@@ -21,7 +19,7 @@ export const MAX_IMPORT_BYTES = 8 * 1024 * 1024;
 
 export const logTrialHandler = async (req: Request, p: Record<string, string>) => {
   const key = req.headers.get('idempotency-key');
-  if (key === null || !KEY.test(key)) {
+  if (key === null || !IDEMPOTENCY_KEY.test(key)) {
     throw new DomainError('invalid_input', 'send an Idempotency-Key header of 8–100 letters, digits or . _ : - (one per log entry)', 'Idempotency-Key');
   }
   const input = parseWith(trialLogSchema, await readJson(req));
@@ -30,20 +28,6 @@ export const logTrialHandler = async (req: Request, p: Record<string, string>) =
 };
 
 export const getTrialHandler = async (_req: Request, p: Record<string, string>) => ({ trial: await getTrial(p.id!, p.trialId!) });
-
-const optionalQueryNumber = z
-  .string()
-  .trim()
-  .optional()
-  .transform((s, ctx) => {
-    if (s === undefined || s === '') return undefined;
-    const v = Number(s);
-    if (!Number.isFinite(v)) {
-      ctx.addIssue({ code: 'custom', message: `'${s}' is not a number` });
-      return z.NEVER;
-    }
-    return v;
-  });
 
 const mcapQuerySchema = z.object({
   topic: z.string().trim().min(1, 'name the topic that carries the robot pose, e.g. /robot/pose'),

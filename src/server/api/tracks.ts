@@ -13,7 +13,7 @@ export const MAX_TRACK_BYTES = 64 * 1024 * 1024;
 const columnName = z.string().trim().min(1, 'give the column name as it appears in the CSV header');
 
 /** An optional number given as a query-string value; blank means absent. */
-const optionalNumber = z
+export const optionalQueryNumber = z
   .string()
   .trim()
   .optional()
@@ -34,12 +34,12 @@ export const trackQuerySchema = z.object({
   z: columnName,
   lengthUnit: z.enum(['m', 'cm', 'mm'], { message: "use 'm', 'cm' or 'mm'" }),
   timeUnit: z.enum(['s', 'ms'], { message: "use 's' or 'ms'" }),
-  massGrams: optionalNumber.refine((v) => v === undefined || v > 0, 'the mass must be > 0 g'),
-  energyJoules: optionalNumber.refine((v) => v === undefined || v >= 0, 'the energy must be ≥ 0 J'),
-  targetX: optionalNumber,
-  targetY: optionalNumber,
-  flightThreshold: optionalNumber.refine((v) => v === undefined || v > 0, 'the flight threshold must be > 0'),
-  gravityTolerance: optionalNumber.refine((v) => v === undefined || (v > 0 && v < 1), 'the gravity tolerance is a fraction in (0, 1)'),
+  massGrams: optionalQueryNumber.refine((v) => v === undefined || v > 0, 'the mass must be > 0 g'),
+  energyJoules: optionalQueryNumber.refine((v) => v === undefined || v >= 0, 'the energy must be ≥ 0 J'),
+  targetX: optionalQueryNumber,
+  targetY: optionalQueryNumber,
+  flightThreshold: optionalQueryNumber.refine((v) => v === undefined || v > 0, 'the flight threshold must be > 0'),
+  gravityTolerance: optionalQueryNumber.refine((v) => v === undefined || (v > 0 && v < 1), 'the gravity tolerance is a fraction in (0, 1)'),
   // Optional orientation columns: a quaternion (qw, qx, qy, qz) or roll and pitch with angleUnit.
   qw: columnName.optional(),
   qx: columnName.optional(),
