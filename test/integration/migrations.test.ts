@@ -176,6 +176,10 @@ async function buildCampaign(client: Db): Promise<Record<string, { id: string; d
   const user = keep('User', userData, await client.user.create({ data: userData }));
   const tokenData = { userId: user.id, name: 'rig tablet', role: 'operator', tokenHash: randomUUID() };
   keep('ApiToken', tokenData, await client.apiToken.create({ data: tokenData }));
+  const sessionData = { userId: user.id, tokenHash: randomUUID(), expiresAt: new Date('2030-01-01T00:00:00Z'), userAgent: 'test tablet' };
+  keep('Session', sessionData, await client.session.create({ data: sessionData }));
+  const jobData = { kind: 'design-search', inputJson: '{"runs":12}', campaignId, createdBy: user.email };
+  keep('Job', jobData, await client.job.create({ data: jobData }));
   const auditData = { actor: user.email, action: 'create', entity: 'Campaign', entityId: campaignId, afterJson: JSON.stringify(campaignData) };
   keep('AuditEvent', auditData, await client.auditEvent.create({ data: auditData }));
   return rows;
@@ -263,7 +267,7 @@ describe(`data model on ${config.provider}`, () => {
   it('deleting a campaign leaves none of its rows behind', async () => {
     const rows = await buildCampaign(client);
     await client.campaign.delete({ where: { id: rows.Campaign.id } });
-    const global = new Set(['User', 'ApiToken', 'AuditEvent']);
+    const global = new Set(['User', 'ApiToken', 'Session', 'Job', 'AuditEvent']);
     for (const model of schema.models.filter((m) => !global.has(m))) {
       expect(await delegate(client, model).findUnique({ where: { id: rows[model].id } }), model).toBeNull();
     }

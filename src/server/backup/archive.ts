@@ -9,8 +9,9 @@ import { db, type Db } from '@/server/db/client';
 
 /** Tables in an order that respects foreign keys, with their date-time columns. */
 export const TABLES = [
-  ['user', ['createdAt']],
-  ['apiToken', ['createdAt', 'revokedAt']],
+  ['user', ['createdAt', 'disabledAt']],
+  ['session', ['createdAt', 'expiresAt', 'lastSeenAt']],
+  ['apiToken', ['createdAt', 'expiresAt', 'lastUsedAt', 'revokedAt']],
   ['campaign', ['createdAt', 'updatedAt']],
   ['factor', []],
   ['response', []],
@@ -25,6 +26,7 @@ export const TABLES = [
   ['amendment', ['createdAt']],
   ['analysis', ['createdAt']],
   ['suggestion', ['createdAt']],
+  ['job', ['createdAt', 'startedAt', 'finishedAt']],
   ['auditEvent', ['at']],
 ] as const;
 
