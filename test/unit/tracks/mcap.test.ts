@@ -84,11 +84,13 @@ describe('MCAP pose reading (files built with @mcap/core writer)', () => {
     expect(r.summary.costOfTransport).toBeGreaterThan(0);
   });
 
-  it('names the topics when the chosen one is absent, and refuses non-JSON messages', async () => {
+  it('names the topics when the chosen one is absent, and refuses CDR without a ROS 2 definition or other encodings', async () => {
     const bytes = await buildMcap(track, 'flat');
     expect(() => readMcapPoses(bytes, '/rig/imu')).toThrow(/'\/rig\/battery', '\/rig\/pose'/);
     const cdr = await buildMcap(track, 'flat', 'cdr');
-    expect(() => readMcapPoses(cdr, '/rig/pose')).toThrow(/only JSON/);
+    expect(() => readMcapPoses(cdr, '/rig/pose')).toThrow(/only ROS 2 message definitions \(ros2msg\)/);
+    const proto = await buildMcap(track, 'flat', 'protobuf');
+    expect(() => readMcapPoses(proto, '/rig/pose')).toThrow(/JSON and CDR \(ROS 2\) messages are read/);
     expect(() => readMcapPoses(new Uint8Array([1, 2, 3, 4, 5, 6, 7, 8, 9]), '/rig/pose')).toThrow(/not a readable MCAP/);
   });
 });
