@@ -6,6 +6,7 @@ import { fitLinearModel, type LinearModelFit } from './linear-model';
 import { buildModelFrame, type ModelFrame } from './model-frame';
 import { fitLogisticModel, type LogisticFit } from './logistic';
 import { regressionDiagnostics } from './diagnostics';
+import { splitPlotAnalysis } from './split-plot';
 import type { AnalysisRequest, AnalysisResult } from './types';
 
 function diagnosticFields(request: AnalysisRequest, lm: LinearModelFit): Pick<AnalysisResult, 'press' | 'predictedRSquared' | 'diagnostics' | 'runs'> {
@@ -63,10 +64,68 @@ export function analyze(request: AnalysisRequest): AnalysisResult {
   if (family !== 'gaussian' && family !== 'binomial') {
     throw new DomainError('unsupported', `family "${String(family)}" is not available; use "gaussian" or "binomial"`, 'family');
   }
+  if (request.wholePlot !== undefined) {
+    if (family !== 'gaussian') throw new DomainError('unsupported', 'a whole-plot random effect is available for family "gaussian" only; leave out wholePlot or family', 'wholePlot');
+    return withSurface(resultOfSplitPlot(request as AnalysisRequest & { wholePlot: string }));
+  }
   const frame = buildModelFrame(request);
   if (family === 'binomial') return resultOfLogisticFit(request, frame, fitLogisticModel(frame));
   const result = resultOfLinearFit(request, fitLinearModel(frame));
   return withSurface(result);
+}
+
+/**
+ * Split-plot answer: REML estimates with Kenward–Roger standard errors, t and df per coefficient,
+ * one F test per term with its Kenward–Roger denominator df and error stratum, the variance
+ * components, and R² of the fixed effects alone (1 − Σ(y − Xβ̂)² / Σ(y − ȳ)²).
+ */
+function resultOfSplitPlot(request: AnalysisRequest & { wholePlot: string }): AnalysisResult {
+  const sp = splitPlotAnalysis(request);
+  const { frame } = sp;
+  const y = frame.y;
+  let mean = 0;
+  for (let i = 0; i < sp.n; i++) mean += y[i]!;
+  mean /= sp.n;
+  let sst = 0;
+  let rss = 0;
+  for (let i = 0; i < sp.n; i++) {
+    sst += (y[i]! - mean) ** 2;
+    rss += sp.residuals[i]! ** 2;
+  }
+  const rank = sp.coefficients.length;
+  return {
+    family: 'gaussian',
+    response: request.response,
+    coding: frame.coding,
+    factors: frame.factors,
+    n: sp.n,
+    excludedRows: frame.excludedRows,
+    intercept: frame.intercept,
+    terms: frame.terms.filter((t) => t.parts.length > 0).map((t) => t.label),
+    coefficients: sp.coefficients,
+    aliased: sp.aliased,
+    rank,
+    // Sums of squares are not defined for the Kenward–Roger tests: NaN (null in JSON).
+    anova: sp.tests.map((t) => ({ source: t.source, df: t.df, ss: NaN, ms: null, f: t.f, p: t.p, denominatorDf: t.denominatorDf, stratum: t.stratum })),
+    rSquared: frame.intercept && sst > 0 ? 1 - rss / sst : NaN,
+    adjustedRSquared: NaN,
+    residualStdError: Math.sqrt(sp.residualVariance),
+    residualDf: sp.subplotErrorDf,
+    varianceComponents: { wholePlot: sp.wholePlotVariance, residual: sp.residualVariance },
+    splitPlot: {
+      wholePlot: request.wholePlot,
+      wholePlots: sp.wholePlots,
+      wholePlotErrorDf: sp.wholePlotErrorDf,
+      subplotErrorDf: sp.subplotErrorDf,
+      restrictedLogLikelihood: sp.restrictedLogLikelihood,
+      wholePlotEffects: sp.wholePlotEffects,
+      wholePlotOf: sp.wholePlotOf,
+    },
+    covariance: sp.covariance,
+    fitted: Array.from(sp.fitted),
+    residuals: Array.from(sp.residuals),
+    observed: Array.from(y),
+  };
 }
 
 /** Result of a pass/fail (binomial) analysis. */

@@ -48,4 +48,4 @@ export {
 } from './desirability';
 export { fitLogisticModel, type LogisticFit, type Separation } from './logistic';
 export { backwardReduction, boxCox, type BackwardReductionResult, type BoxCoxResult, type ReductionStep } from './model-selection';
-export { splitPlotAnalysis, type SplitPlotRequest, type SplitPlotResult, type SplitPlotTerm } from './split-plot';
+export { splitPlotAnalysis, type SplitPlotRequest, type SplitPlotResult, type SplitPlotSummary, type SplitPlotTerm } from './split-plot';

@@ -105,10 +105,10 @@ function irls(frame: ModelFrame, cols: number[], maxIterations = 60): IrlsResult
     const next = binaryDeviance(y, mu);
     const change = Math.abs(next - deviance);
     deviance = next;
-    if (change <= 1e-10 * (Math.abs(next) + 0.1)) {
-      converged = true;
-      break;
-    }
+    if (converged) break;
+    // Converged: one more step, so that the estimates are polished and the covariance is taken at
+    // the weights of the converged estimate (not of the step before it).
+    if (change <= 1e-10 * (Math.abs(next) + 0.1)) converged = true;
   }
   return { beta, basis, aliased, cov, mu, eta, deviance, iterations: Math.min(it, maxIterations), converged };
 }

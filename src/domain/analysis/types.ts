@@ -21,6 +21,8 @@ export interface AnalysisRequest {
   family?: Family;
   /** Include regression diagnostics (default: when there are at most 20,000 runs). */
   diagnostics?: boolean;
+  /** Column naming each run's whole plot: fit by REML with a whole-plot random effect (split-plot data). */
+  wholePlot?: string;
 }
 
 export interface CoefficientRow {
@@ -44,6 +46,9 @@ export interface AnovaRow {
   ms: number | null;
   f: number | null;
   p: number | null;
+  /** Split-plot fits: Kenward–Roger denominator df of the term's F test, and the error it is tested against. */
+  denominatorDf?: number;
+  stratum?: 'whole plot' | 'subplot';
 }
 
 export interface LackOfFit {
@@ -97,6 +102,9 @@ export interface AnalysisResult {
     converged: boolean;
     separation?: import('./logistic').Separation;
   };
+  /** For split-plot fits (request.wholePlot): REML variance components and the whole-plot structure. */
+  varianceComponents?: { wholePlot: number; residual: number };
+  splitPlot?: import('./split-plot').SplitPlotSummary;
   /** For models with squared numeric terms: the stationary point and canonical analysis. */
   stationaryPoint?: import('./response-surface').StationaryPoint | null;
   canonical?: import('./response-surface').CanonicalAnalysis;

@@ -23,6 +23,8 @@ export const analysisRequestSchema = z.object({
   coding: z.enum(['natural', 'coded']).optional(),
   family: z.enum(['gaussian', 'binomial']).optional(),
   diagnostics: z.boolean().optional(),
+  /** Column naming each run's whole plot: REML with a whole-plot random effect, Kenward–Roger df. */
+  wholePlot: name.optional(),
 });
 
 export type AnalysisRequestInput = z.infer<typeof analysisRequestSchema>;
