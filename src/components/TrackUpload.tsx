@@ -8,6 +8,7 @@ import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { parseTrackCsv } from '@/domain/tracks/csv';
 import type { Hop, TrackMetrics } from '@/domain/tracks/hops';
+import { listMcapTopics, type McapTopic } from '@/domain/tracks/mcap';
 import { postText, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
 
@@ -32,6 +33,9 @@ function headerOf(text: string): string[] {
   return line.split(delimiter).map((h) => h.trim().replace(/^"|"$/g, ''));
 }
 
+/** Schemas that carry a position; such a topic is chosen first. */
+const POSE_SCHEMA = /pose|transform|odometry|position/i;
+
 const fmt = (v: number | undefined | null, digits = 3) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : Number(v.toPrecision(digits)).toString());
 
 export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: string; trialId: string; runNumber: number }) {
@@ -41,6 +45,8 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
   const [format, setFormat] = useState<'csv' | 'mcap'>('csv');
   const [bytes, setBytes] = useState<ArrayBuffer | null>(null);
   const [topic, setTopic] = useState('');
+  /** Topics of the chosen MCAP log (read on the tablet); null when the file could not be listed. */
+  const [topics, setTopics] = useState<McapTopic[] | null>(null);
   const [header, setHeader] = useState<string[]>([]);
   const [columns, setColumns] = useState({ time: '', x: '', y: '', z: '' });
   const [lengthUnit, setLengthUnit] = useState<'m' | 'mm'>('mm');
@@ -59,9 +65,19 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
     if (/\.mcap$/i.test(file.name)) {
       setFormat('mcap');
       setFileName(file.name);
-      setBytes(await file.arrayBuffer());
+      const buffer = await file.arrayBuffer();
+      setBytes(buffer);
       setText('');
       setHeader([]);
+      try {
+        const list = listMcapTopics(new Uint8Array(buffer));
+        setTopics(list);
+        setTopic((list.find((t) => POSE_SCHEMA.test(t.schemaName)) ?? list.find((t) => t.messages > 0) ?? list[0])?.topic ?? '');
+      } catch (err) {
+        // The server reads the file again and answers with the field at fault; the topic is typed.
+        setTopics(null);
+        setError({ code: 'invalid_input', field: '(body)', message: err instanceof Error ? err.message : String(err) });
+      }
       return;
     }
     setFormat('csv');
@@ -124,7 +140,17 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
             <div className="row" style={{ marginTop: '0.6rem' }}>
               <div>
                 <label htmlFor={`${prefix}-topic`}>Pose topic</label>
-                <input id={`${prefix}-topic`} value={topic} onChange={(e) => setTopic(e.target.value)} placeholder="/robot/pose" aria-invalid={error?.field === 'topic' || undefined} />
+                {topics && topics.length ? (
+                  <select id={`${prefix}-topic`} value={topic} onChange={(e) => setTopic(e.target.value)} aria-invalid={error?.field === 'topic' || undefined}>
+                    {topics.map((t) => (
+                      <option key={t.topic} value={t.topic}>
+                        {t.topic} — {t.schemaName || `no schema, ${t.messageEncoding}`} ({t.messages} messages)
+                      </option>
+                    ))}
+                  </select>
+                ) : (
+                  <input id={`${prefix}-topic`} value={topic} onChange={(e) => setTopic(e.target.value)} placeholder="/robot/pose" aria-invalid={error?.field === 'topic' || undefined} />
+                )}
               </div>
               <div>
                 <label htmlFor={`${prefix}-mtx`}>Target x (m, optional)</label>

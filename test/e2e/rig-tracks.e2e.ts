@@ -186,10 +186,10 @@ describe('tracks, corrections and import at the rig page', () => {
     await page.goto(rigUrl);
     await page.getByRole('button', { name: /^Add a motion track to run \d+/ }).first().click();
     await page.getByLabel(/Motion track of run/).setInputFiles({ name: 'hops.mcap', mimeType: 'application/octet-stream', buffer: await ballisticTrackMcap(0.15, 3, 0.4) });
-    await page.getByLabel('Pose topic').fill('/robot/imu');
-    await page.getByRole('button', { name: 'Compute hops and store track' }).click();
-    await expect.poll(() => page.getByTestId('error').innerText(), { timeout: 15_000 }).toMatch(/\/robot\/pose/);
-    await page.getByLabel('Pose topic').fill('/robot/pose');
+    // The topic chooser lists the log's topics with their schema names and message counts.
+    const chooser = page.getByLabel('Pose topic');
+    await expect.poll(() => chooser.locator('option').allInnerTexts(), { timeout: 15_000 }).toEqual([expect.stringMatching(/^\/robot\/pose — pose \(\d+ messages\)$/)]);
+    await chooser.selectOption('/robot/pose');
     await page.getByRole('button', { name: 'Compute hops and store track' }).click();
     const table = page.getByTestId('hop-table');
     await expect.poll(() => table.locator('tbody tr').count(), { timeout: 20_000 }).toBe(3);
