@@ -10,7 +10,7 @@ export { designDiagnostics, assertEstimable } from './diagnostics';
 export * from './fractional-factorial';
 export * from './plackett-burman';
 export { summariseFraction } from './generate';
-export { coordinateExchange, DEFAULT_STARTS, type OptimalProblem, type OptimalSearchOptions, type OptimalSearchResult, type OptimalityCriterion } from './optimal';
+export { coordinateExchange, DEFAULT_STARTS, type OptimalProblem, type OptimalSearchOptions, type OptimalSearchResult, type OptimalityCriterion, type OptimalProgress } from './optimal';
 export { optimalDesign, exchangeLevels, evenGroups, blockFactor, type OptimalDesignOptions } from './optimal-design';
 export { codedRegion, momentMatrix, columnFactorParts, randomFeasiblePoint, type CodedRegion } from './region';
 export { fastModel, type FastModel } from './model-rows';

@@ -45,10 +45,18 @@ export interface OptimalSearchOptions {
   starts?: number;
   seed?: number;
   maxPasses?: number;
-  /** Called after each start with the fraction of starts done. */
-  onProgress?: (fraction: number) => void;
+  /** Called after each start with the fraction of starts done and the best design so far. */
+  onProgress?: (fraction: number, detail: OptimalProgress) => void;
   /** Checked between starts and passes; when true the best design so far is returned. */
   shouldStop?: () => boolean;
+}
+
+export interface OptimalProgress {
+  startsCompleted: number;
+  starts: number;
+  criterion: OptimalityCriterion;
+  /** Best so far: |M / N|^(1/p) for D (the D-efficiency of the diagnostics without whole plots); trace(W M^-1) for I. */
+  best: number | null;
 }
 
 export interface OptimalSearchResult {
@@ -256,7 +264,12 @@ export function coordinateExchange(problem: OptimalProblem, options: OptimalSear
     if (better) {
       best = { coded: st.coded.map((c) => c.slice()), criterion, value: valid ? value : criterion === 'D' ? -Infinity : Infinity, logDet: valid ? st.logDet : -Infinity, startsCompleted: 0, stopped: false };
     }
-    options.onProgress?.(completed / starts);
+    if (options.onProgress) {
+      const total = st.n + existing.length;
+      const finite = best !== null && Number.isFinite(best.value);
+      const shown = !finite ? null : criterion === 'D' ? Math.exp(best!.logDet / p) / total : best!.value;
+      options.onProgress(completed / starts, { startsCompleted: completed, starts, criterion, best: shown });
+    }
   }
   if (!best) throw new DomainError('unsupported', 'the search was stopped before the first start finished', 'starts');
   return { ...best, startsCompleted: completed, stopped };

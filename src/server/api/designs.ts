@@ -1,6 +1,7 @@
 /** POST /api/v1/designs: the request schema and the handler (stateless, so rig scripts can call it). */
 import { z } from 'zod';
 import { generateDesign, DESIGN_METHODS, type DesignResult, type DesignSpec } from '@/domain/design';
+import { designOffThread } from '@/server/jobs/off-thread';
 import { parseWith } from './validation';
 
 const factorName = z.string().regex(/^[A-Za-z][A-Za-z0-9_]{0,39}$/, 'a factor name starts with a letter and has only letters, digits and _ (at most 40)');
@@ -47,3 +48,13 @@ export function handleDesignRequest(body: unknown): DesignResult {
   const spec = parseWith(designSpecSchema, body) as DesignSpec;
   return generateDesign(spec);
 }
+
+/**
+ * The route's handler: an optimal-design search runs in the worker pool (awaited) so the server's event
+ * loop stays free; the constructions are quick and run here.
+ */
+export async function handleDesignRequestOffThread(body: unknown): Promise<DesignResult> {
+  const spec = parseWith(designSpecSchema, body) as DesignSpec;
+  return designOffThread(spec);
+}
+

@@ -1,6 +1,7 @@
 /** POST /api/v1/suggestions: the request schema and the handler (stateless). */
 import { z } from 'zod';
 import { suggestTrials, type SuggestionRequest, type SuggestionResult } from '@/domain/surrogate';
+import { suggestionsOffThread } from '@/server/jobs/off-thread';
 import { parseWith } from './validation';
 
 const name = z.string().regex(/^[A-Za-z][A-Za-z0-9_]{0,39}$/, 'a name starts with a letter and has only letters, digits and _ (at most 40)');
@@ -61,4 +62,10 @@ export type SuggestionRequestInput = z.infer<typeof suggestionRequestSchema>;
 export function handleSuggestionRequest(body: unknown): SuggestionResult {
   const request = parseWith(suggestionRequestSchema, body) as SuggestionRequest;
   return suggestTrials(request);
+}
+
+/** The route's handler: the surrogate fit and the batch run in the worker pool (awaited), off the event loop. */
+export async function handleSuggestionRequestOffThread(body: unknown): Promise<SuggestionResult> {
+  const request = parseWith(suggestionRequestSchema, body) as SuggestionRequest;
+  return suggestionsOffThread(request);
 }

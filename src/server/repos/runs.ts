@@ -1,9 +1,10 @@
 /** Designs and runs: committing a design to a campaign, listing runs with their state, adding runs. */
 import { DomainError, invalidInput } from '@/domain/errors';
-import { generateDesign, type DesignResult, type DesignSpec } from '@/domain/design';
+import type { DesignResult, DesignSpec } from '@/domain/design';
 import { codePoint, isFeasible, type Point } from '@/domain/factors';
 import type { z } from 'zod';
 import type { campaignDesignSchema } from '@/server/api/schemas/campaign';
+import { designOffThread } from '@/server/jobs/off-thread';
 import { db } from '@/server/db/client';
 import { audit } from './audit';
 import { domainFactors, getCampaign } from './campaigns';
@@ -27,13 +28,14 @@ export function campaignDesignSpec(factors: DesignSpec['factors'], input: Campai
     ...(input.resolution !== undefined ? { resolution: input.resolution } : {}),
     ...(input.wholePlots !== undefined ? { wholePlots: input.wholePlots } : {}),
     ...(input.blocks !== undefined ? { blocks: input.blocks } : {}),
+    ...(input.starts !== undefined ? { starts: input.starts } : {}),
   };
 }
 
 /** Preview a design without storing it. */
 export async function previewDesign(campaignId: string, input: CampaignDesignInput): Promise<DesignResult> {
   const campaign = await getCampaign(campaignId);
-  return generateDesign(campaignDesignSpec(domainFactors(campaign), input));
+  return designOffThread(campaignDesignSpec(domainFactors(campaign), input));
 }
 
 /**
@@ -43,7 +45,7 @@ export async function previewDesign(campaignId: string, input: CampaignDesignInp
 export async function commitDesign(campaignId: string, input: CampaignDesignInput, actor = 'local') {
   const campaign = await getCampaign(campaignId);
   const spec = campaignDesignSpec(domainFactors(campaign), input);
-  const result = generateDesign(spec);
+  const result = await designOffThread(spec);
   const client = await db();
   return client.$transaction(async (tx) => {
     const last = await tx.design.findFirst({ where: { campaignId }, orderBy: { version: 'desc' } });

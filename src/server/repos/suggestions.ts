@@ -2,6 +2,7 @@
 import { nextRunByPredictionVariance } from '@/domain/design';
 import { DomainError } from '@/domain/errors';
 import type { Point, StandardModel } from '@/domain/factors';
+import type { SuggestionRequest, SuggestionResult, SurrogateSlice } from '@/domain/surrogate';
 import { db } from '@/server/db/client';
 import { audit } from './audit';
 import { domainFactors, getCampaign } from './campaigns';
@@ -85,7 +86,26 @@ export interface BatchInput {
  * mean ± sd along every factor, through the best proposal, for the picture on the page.
  */
 export async function proposeSurrogateBatch(campaignId: string, input: BatchInput, actor = 'local') {
-  const [{ suggestTrials, fitSurrogate, surrogateSlice }, { campaignData }] = await Promise.all([import('@/domain/surrogate'), import('./analyses')]);
+  const prepared = await surrogateBatchRequest(campaignId, input);
+  const { runInPool } = await import('@/server/jobs/pool');
+  const { result } = await runInPool('surrogate-batch', prepared.request);
+  return storeSurrogateBatch(prepared, result as SurrogateBatchComputed, actor);
+}
+
+/** What the surrogate batch of a campaign needs: the stateless request built from its logged trials. */
+export interface SurrogateBatchPrepared {
+  campaignId: string;
+  input: BatchInput;
+  response: { name: string; unit: string };
+  request: SuggestionRequest;
+}
+
+/** The worker's answer for a surrogate batch: the suggestions, the model summary and the slices. */
+export type SurrogateBatchComputed = SuggestionResult & { slices: SurrogateSlice[] };
+
+/** Build the stateless suggestion request from a campaign's factors, responses and logged trials. */
+export async function surrogateBatchRequest(campaignId: string, input: BatchInput): Promise<SurrogateBatchPrepared> {
+  const { campaignData } = await import('./analyses');
   const campaign = await getCampaign(campaignId);
   const response = campaign.responses.find((r) => r.name === input.response);
   if (!response) {
@@ -106,11 +126,11 @@ export async function proposeSurrogateBatch(campaignId: string, input: BatchInpu
     throw new DomainError('invalid_input', `the surrogate needs at least 3 logged trials with ${response.name}; log more trials first`, 'response');
   }
   const swapCost = Object.fromEntries(campaign.factors.filter((f) => f.hardToChange && f.changeMinutes > 0).map((f) => [f.name, f.changeMinutes]));
-  const request = {
+  const request: SuggestionRequest = {
     factors,
-    data: data as never,
+    data: data as SuggestionRequest['data'],
     response: response.name,
-    goal: (response.goal === 'minimize' ? 'minimize' : 'maximize') as 'maximize' | 'minimize',
+    goal: response.goal === 'minimize' ? 'minimize' : 'maximize',
     count: input.count,
     strategy: input.strategy,
     swapCost,
@@ -118,14 +138,16 @@ export async function proposeSurrogateBatch(campaignId: string, input: BatchInpu
     seed: input.seed ?? 1,
     trialMinutes: campaign.trialMinutes,
   };
-  const result = suggestTrials(request);
-  const model = fitSurrogate(request);
-  const held = result.suggestions[0]?.values ?? {};
-  const slices = factors.map((f) => surrogateSlice(model, f.name, held, 40));
+  return { campaignId, input, response: { name: response.name, unit: response.unit ?? '' }, request };
+}
+
+/** Store each proposal of a computed batch with its reason (audited) and answer the page's shape. */
+export async function storeSurrogateBatch(prepared: SurrogateBatchPrepared, computed: SurrogateBatchComputed, actor = 'local') {
+  const { campaignId, input, response, request } = prepared;
   const client = await db();
   const stored = await client.$transaction(async (tx) => {
     const out = [];
-    for (const s of result.suggestions) {
+    for (const s of computed.suggestions) {
       const row = await tx.suggestion.create({
         data: {
           campaignId,
@@ -140,5 +162,5 @@ export async function proposeSurrogateBatch(campaignId: string, input: BatchInpu
     }
     return out;
   });
-  return { response: response.name, unit: response.unit ?? '', goal: request.goal, strategy: input.strategy, suggestions: stored, model: result.model, slices };
+  return { response: response.name, unit: response.unit, goal: request.goal, strategy: input.strategy, suggestions: stored, model: computed.model, slices: computed.slices };
 }

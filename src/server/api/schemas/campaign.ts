@@ -145,6 +145,8 @@ export const campaignDesignSchema = z.object({
   resolution: z.number().int().min(3).max(8).optional(),
   wholePlots: z.number().int().min(2).max(500).optional(),
   blocks: z.number().int().min(1).max(50).optional(),
+  /** Optimal designs: random starts of the search (more starts, longer search; run as a job from the planner). */
+  starts: z.number().int('starts must be a whole number').min(1, 'at least 1 start').max(10_000, 'at most 10000 starts').optional(),
 });
 
 export const scheduleCreateSchema = z.object({
