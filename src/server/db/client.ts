@@ -4,12 +4,35 @@
  * Both generated clients expose the same model API; the SQLite one's types are used throughout.
  */
 import { PrismaBetterSqlite3 } from '@prisma/adapter-better-sqlite3';
+import type BetterSqlite3 from 'better-sqlite3';
 import { PrismaClient } from '@/generated/sqlite/client';
 import { databaseConfig } from './config';
 
 export type Db = PrismaClient;
+/** The better-sqlite3 connection under the Prisma client (SQLite only). */
+export type SqliteConnection = BetterSqlite3.Database;
 
-const globalForDb = globalThis as unknown as { saltusDb?: Promise<Db> };
+const globalForDb = globalThis as unknown as { saltusDb?: Promise<Db>; saltusSqlite?: SqliteConnection | null };
+
+function isSqliteConnection(x: unknown): x is SqliteConnection {
+  const c = x as Partial<SqliteConnection> | null;
+  return !!c && typeof c.prepare === 'function' && typeof c.exec === 'function' && typeof c.inTransaction === 'boolean';
+}
+
+/**
+ * Prisma's better-sqlite3 adapter opens one connection; keep a handle on it so that the trial-log hot
+ * path can run prepared statements on the very same connection (never a second writer beside Prisma).
+ */
+function capturingFactory(factory: PrismaBetterSqlite3): PrismaBetterSqlite3 {
+  const connect = factory.connect.bind(factory);
+  factory.connect = async () => {
+    const adapter = await connect();
+    const conn = (adapter as unknown as { client?: unknown }).client;
+    globalForDb.saltusSqlite = isSqliteConnection(conn) ? conn : null;
+    return adapter;
+  };
+  return factory;
+}
 
 async function createClient(): Promise<Db> {
   const config = databaseConfig();
@@ -18,7 +41,7 @@ async function createClient(): Promise<Db> {
     const adapter = new PrismaPg({ connectionString: config.url, max: Number(process.env.SALTUS_PG_POOL ?? 10) });
     return new pgClient.PrismaClient({ adapter }) as unknown as Db;
   }
-  const adapter = new PrismaBetterSqlite3({ url: config.url, timeout: 10_000 });
+  const adapter = capturingFactory(new PrismaBetterSqlite3({ url: config.url, timeout: 10_000 }));
   const client = new PrismaClient({ adapter });
   // WAL with synchronous=FULL: a commit is on disk before it is acknowledged (NORMAL could lose the
   // last transactions on power loss). busy_timeout lets concurrent writers queue instead of failing.
@@ -34,8 +57,19 @@ export function db(): Promise<Db> {
   return globalForDb.saltusDb;
 }
 
+/**
+ * The SQLite connection Prisma uses, for prepared statements on hot paths; null on PostgreSQL (or if
+ * the adapter does not expose it, in which case callers use Prisma).
+ */
+export async function sqliteConnection(): Promise<SqliteConnection | null> {
+  await db();
+  const conn = globalForDb.saltusSqlite;
+  return conn && conn.open ? conn : null;
+}
+
 export async function closeDb(): Promise<void> {
   const p = globalForDb.saltusDb;
   globalForDb.saltusDb = undefined;
+  globalForDb.saltusSqlite = undefined;
   if (p) await (await p).$disconnect();
 }

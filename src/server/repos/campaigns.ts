@@ -127,6 +127,36 @@ export async function getCampaign(id: string): Promise<CampaignView> {
   };
 }
 
+/**
+ * Campaign definitions (factors, responses, robots, rigs) for hot paths such as the rig log, kept in
+ * memory per database client. A change to a campaign's definition must call `forgetCampaign(id)` in
+ * the process that makes it; entries are also re-read after CAMPAIGN_CACHE_MS, which bounds how long
+ * another app server sharing a PostgreSQL database could see an old definition.
+ */
+export const CAMPAIGN_CACHE_MS = 10_000;
+const cacheHolder = globalThis as unknown as { saltusCampaignCache?: { client: unknown; entries: Map<string, { view: Promise<CampaignView>; at: number }> } };
+
+export async function cachedCampaign(id: string): Promise<CampaignView> {
+  const client = await db();
+  if (cacheHolder.saltusCampaignCache?.client !== client) cacheHolder.saltusCampaignCache = { client, entries: new Map() };
+  const entries = cacheHolder.saltusCampaignCache.entries;
+  const now = Date.now();
+  const hit = entries.get(id);
+  if (hit && now - hit.at < CAMPAIGN_CACHE_MS) return hit.view;
+  const view = getCampaign(id);
+  entries.set(id, { view, at: now });
+  // An unknown campaign is not remembered (it may be created in a moment).
+  view.catch(() => {
+    if (entries.get(id)?.view === view) entries.delete(id);
+  });
+  return view;
+}
+
+/** Drop a campaign's cached definition; call after any change to its factors, responses, robots or rigs. */
+export function forgetCampaign(id: string): void {
+  cacheHolder.saltusCampaignCache?.entries.delete(id);
+}
+
 /** Domain factors of a campaign (without database ids), in position order. */
 export function domainFactors(c: CampaignView): Factor[] {
   return c.factors.map((f) => {

@@ -10,23 +10,12 @@ import { checkReadings } from '@/domain/metrics/plausibility';
 import type { z } from 'zod';
 import type { trialLogSchema } from '@/server/api/schemas/rig';
 import { db } from '@/server/db/client';
-import { getCampaign } from './campaigns';
-import { finishTrial, standardReadings, startTrial } from './trials';
+import { cachedCampaign } from './campaigns';
+import { keyIsStored, storeLoggedTrial, VERSION_AFTER_LOG, type LoggedValues, type LogWrite } from './trial-log-store';
+import { finishTrial, standardReadings } from './trials';
 
 export type TrialLogInput = z.output<typeof trialLogSchema>;
-
-/** What the operator entered, in the shape both sides of a conflict are shown in. */
-export interface LoggedValues {
-  runId: string;
-  status: string;
-  passed: boolean | null;
-  failureReason: string;
-  notes: string;
-  observations: Record<string, number>;
-}
-
-/** Version a trial has right after a combined log: 1 at start, +1 at finish. */
-const VERSION_AFTER_LOG = 2;
+export type { LoggedValues };
 
 function sentValues(input: TrialLogInput): LoggedValues {
   const passed = input.status === 'failed' ? false : input.passed ?? (input.status === 'done' ? true : null);
@@ -65,9 +54,12 @@ function sameValues(a: LoggedValues, b: LoggedValues): boolean {
   return a.runId === b.runId && a.status === b.status && a.passed === b.passed && a.failureReason === b.failureReason && a.notes === b.notes;
 }
 
-/** Refuse what finishTrial would refuse, before the start is stored. */
-async function precheck(campaignId: string, input: TrialLogInput, now: Date) {
-  const campaign = await getCampaign(campaignId);
+/**
+ * Check an entry against the campaign (held in memory) and the plausibility rules before anything is
+ * stored, and turn it into the rows to write. Refuses what a separate start and finish would refuse.
+ */
+async function prepareEntry(campaignId: string, input: TrialLogInput, key: string, actor: string, now: Date) {
+  const campaign = await cachedCampaign(campaignId);
   for (const name of Object.keys(input.observations)) {
     if (!campaign.responses.some((r) => r.name === name)) {
       throw invalidInput(`observations.${name}`, `"${name}" is not a response of this campaign; known: ${campaign.responses.map((r) => r.name).join(', ')}`);
@@ -76,20 +68,40 @@ async function precheck(campaignId: string, input: TrialLogInput, now: Date) {
   const robot = input.robotId ? campaign.robots.find((r) => r.id === input.robotId) : undefined;
   if (input.robotId && !robot) throw invalidInput('robotId', 'no such robot in this campaign; choose one from the list');
   if (input.rigId && !campaign.rigs.some((r) => r.id === input.rigId)) throw invalidInput('rigId', 'no such rig in this campaign');
-  const startedAt = input.startedAt ?? now.toISOString();
-  const finishedAt = input.finishedAt ?? now.toISOString();
-  if (Date.parse(finishedAt) < Date.parse(startedAt)) throw invalidInput('finishedAt', 'the finish time is before the start time; check the tablet clock');
+  const startedAt = input.startedAt ? new Date(input.startedAt) : now;
+  if (startedAt.getTime() > now.getTime() + 120_000) throw invalidInput('startedAt', 'the start time is in the future; check the tablet clock');
+  const finishedAt = input.finishedAt ? new Date(input.finishedAt) : now;
+  if (finishedAt.getTime() < startedAt.getTime()) throw invalidInput('finishedAt', 'the finish time is before the start time; check the tablet clock');
   const passed = input.status === 'failed' ? false : input.passed ?? (input.status === 'done' ? true : undefined);
   const { readings, fieldOf } = standardReadings(campaign.responses, input.observations);
   const check = checkReadings(
-    { ...readings, passed, failureReason: input.failureReason || null, startedAt, finishedAt },
+    { ...readings, passed, failureReason: input.failureReason || null, startedAt: startedAt.toISOString(), finishedAt: finishedAt.toISOString() },
     { now: now.toISOString(), robotMassKg: robot ? robot.massGrams / 1000 : null, robotHeightM: robot?.heightMm ? robot.heightMm / 1000 : null },
   );
+  const named = (f: (typeof check.errors)[number]['field']) => (fieldOf[f] ? `observations.${fieldOf[f]}` : f);
   if (check.errors.length) {
     const first = check.errors[0]!;
-    const field = fieldOf[first.field] ? `observations.${fieldOf[first.field]}` : first.field;
-    throw invalidInput(field, first.message, { errors: check.errors, warnings: check.warnings });
+    throw invalidInput(named(first.field), first.message, { errors: check.errors, warnings: check.warnings });
   }
+  const write: LogWrite = {
+    campaignId,
+    runId: input.runId,
+    rigId: input.rigId ?? null,
+    robotId: input.robotId ?? null,
+    operator: input.operator,
+    status: input.status,
+    passed: passed ?? null,
+    failureReason: input.failureReason,
+    notes: input.notes,
+    startedAt,
+    finishedAt,
+    idempotencyKey: key,
+    repeat: input.repeat,
+    observations: Object.entries(input.observations).map(([name, value]) => ({ name, value, unit: campaign.responses.find((r) => r.name === name)?.unit ?? '' })),
+    actor,
+    now,
+  };
+  return { write, warnings: check.warnings.map((w) => ({ field: named(w.field), message: w.message })) };
 }
 
 async function findByKey(key: string): Promise<StoredTrial | null> {
@@ -153,44 +165,24 @@ function finishPart(input: TrialLogInput) {
 }
 
 /**
- * Start and finish one trial in one idempotent step. Answers the stored trial, the plausibility
+ * Start and finish one trial in one idempotent step: checked first, then the trial, its observations
+ * and its audit event are written in one transaction. Answers the stored trial, the plausibility
  * warnings and whether this was a replay of an entry stored before.
  */
 export async function logTrial(campaignId: string, input: TrialLogInput, key: string, actor = 'local', now = new Date()) {
-  const stored = await findByKey(key);
-  if (stored) return replay(campaignId, key, stored, input, actor, now);
-  await precheck(campaignId, input, now);
-  const client = await db();
-  if (!input.repeat) {
-    // Another device logged this run already: show both, never store a silent duplicate.
-    const earlier = await client.trial.findFirst({
-      where: { campaignId, runId: input.runId, status: { in: ['done', 'failed'] } },
-      orderBy: { startedAt: 'desc' },
-      include: { observations: { select: { name: true, value: true } }, amendments: { select: { field: true, oldValue: true, newValue: true, reason: true } } },
-    });
-    if (earlier) {
-      throw new DomainError('conflict', 'this run was already logged on another device; compare both versions, then keep theirs or store yours as a repeat trial', 'runId', {
-        trialId: earlier.id,
-        currentVersion: earlier.version,
-        stored: storedValues(earlier),
-        sent: sentValues(input),
-        amendments: earlier.amendments,
-      });
-    }
+  if (await keyIsStored(key)) {
+    const stored = await findByKey(key);
+    if (stored) return replay(campaignId, key, stored, input, actor, now);
   }
-  const started = await startTrial(
-    campaignId,
-    { runId: input.runId, rigId: input.rigId, robotId: input.robotId, operator: input.operator, startedAt: input.startedAt },
-    key,
-    actor,
-    now,
-  );
-  if (started.replayed) {
-    // A second copy of this request raced the first; answer like a replay.
-    const again = await findByKey(key);
-    if (again) return replay(campaignId, key, again, input, actor, now);
+  const { write, warnings } = await prepareEntry(campaignId, input, key, actor, now);
+  const outcome = await storeLoggedTrial(write);
+  if (outcome.kind === 'exists') {
+    // A copy of this entry was stored a moment before (a concurrent replay): answer like a replay.
+    const stored = await findByKey(key);
+    if (stored) return replay(campaignId, key, stored, input, actor, now);
+    throw new DomainError('conflict', 'this entry is being stored by another request; send it again', 'Idempotency-Key');
   }
-  return finishOrReplay(campaignId, key, started.trial.id, started.trial.version, input, actor, now);
+  return { trial: outcome.trial, warnings, replayed: false };
 }
 
 /** One trial with its readings, amendments and tracks (without the raw track text). */

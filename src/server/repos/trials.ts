@@ -5,20 +5,20 @@
  * an amendment: the original value stays.
  */
 import { DomainError, invalidInput } from '@/domain/errors';
-import { checkReadings } from '@/domain/metrics/plausibility';
-import { standardReadings } from '@/domain/metrics/standard-readings';
+import { observationField, standardReadings } from '@/domain/metrics/standard-readings';
+import { checkTrialEntry } from '@/domain/metrics/trial-entry';
 import type { z } from 'zod';
 import type { amendmentSchema, trialFinishSchema, trialStartSchema } from '@/server/api/schemas/campaign';
 import { db } from '@/server/db/client';
 import { audit } from './audit';
 import { readAllPaged } from './paged';
-import { getCampaign } from './campaigns';
+import { cachedCampaign } from './campaigns';
 
 export type TrialStart = z.output<typeof trialStartSchema>;
 export type TrialFinish = z.output<typeof trialFinishSchema>;
 export type AmendmentInput = z.output<typeof amendmentSchema>;
 
-/** Map a campaign's typed responses onto the standard rig readings the plausibility checks know. */
+/** The standard rig readings of a trial (src/domain/metrics/standard-readings.ts). */
 export { standardReadings };
 
 export async function startTrial(campaignId: string, input: TrialStart, idempotencyKey: string | null, actor = 'local', now = new Date()) {
@@ -60,7 +60,7 @@ export async function startTrial(campaignId: string, input: TrialStart, idempote
 }
 
 export async function finishTrial(campaignId: string, trialId: string, input: TrialFinish, actor = 'local', now = new Date()) {
-  const campaign = await getCampaign(campaignId);
+  const campaign = await cachedCampaign(campaignId);
   const client = await db();
   const trial = await client.trial.findFirst({ where: { id: trialId, campaignId }, include: { robot: true } });
   if (!trial) throw new DomainError('not_found', 'no such trial in this campaign', 'trialId');
@@ -71,23 +71,15 @@ export async function finishTrial(campaignId: string, trialId: string, input: Tr
     throw new DomainError('conflict', 'this trial was changed on another device; reload it and enter the readings again', 'version', { currentVersion: trial.version });
   }
   const responses = campaign.responses;
-  for (const name of Object.keys(input.observations)) {
-    if (!responses.some((r) => r.name === name)) {
-      throw invalidInput(`observations.${name}`, `"${name}" is not a response of this campaign; known: ${responses.map((r) => r.name).join(', ')}`);
-    }
-  }
   const passed = input.status === 'failed' ? false : input.passed ?? (input.status === 'done' ? true : undefined);
-  const { readings, fieldOf } = standardReadings(responses, input.observations);
   const finishedAt = input.finishedAt ?? now.toISOString();
-  const check = checkReadings(
-    { ...readings, passed, failureReason: input.failureReason || null, startedAt: trial.startedAt.toISOString(), finishedAt },
+  const check = checkTrialEntry(
+    responses,
+    input.observations,
+    { passed, failureReason: input.failureReason, startedAt: trial.startedAt.toISOString(), finishedAt },
     { now: now.toISOString(), robotMassKg: trial.robot ? trial.robot.massGrams / 1000 : null, robotHeightM: trial.robot?.heightMm ? trial.robot.heightMm / 1000 : null },
   );
-  if (check.errors.length) {
-    const first = check.errors[0]!;
-    const field = fieldOf[first.field] ? `observations.${fieldOf[first.field]}` : first.field;
-    throw invalidInput(field, first.message, { errors: check.errors, warnings: check.warnings });
-  }
+  if (check.errors.length) throw invalidInput(check.errors[0]!.field, check.errors[0]!.message, { errors: check.errors, warnings: check.warnings });
   const updated = await client.$transaction(async (tx) => {
     const res = await tx.trial.updateMany({
       where: { id: trial.id, version: trial.version, status: 'running' },
@@ -102,13 +94,13 @@ export async function finishTrial(campaignId: string, trialId: string, input: Tr
     });
     if (res.count !== 1) throw new DomainError('conflict', 'this trial was changed on another device at the same moment; reload it', 'version');
     for (const [name, value] of Object.entries(input.observations)) {
-      const unit = responses.find((r) => r.name === name)?.unit ?? '';
+      const unit = observationField(responses, name)?.unit ?? '';
       await tx.observation.create({ data: { trialId: trial.id, name, value, unit, origin: 'typed' } });
     }
     await audit(tx, actor, 'finish-trial', 'trial', trial.id, { status: 'running', version: trial.version }, { status: input.status, passed, observations: input.observations });
     return tx.trial.findUniqueOrThrow({ where: { id: trial.id }, include: { observations: true } });
   });
-  return { trial: updated, warnings: check.warnings.map((w) => ({ field: fieldOf[w.field] ? `observations.${fieldOf[w.field]}` : w.field, message: w.message })) };
+  return { trial: updated, warnings: check.warnings };
 }
 
 export async function amendTrial(campaignId: string, trialId: string, input: AmendmentInput, actor = 'local') {
