@@ -2,7 +2,10 @@
 import { DomainError, invalidInput } from '../errors';
 import {
   codePoint,
+  compileModel,
   decodePoint,
+  modelMatrix,
+  type ModelTerm,
   isFeasible,
   standardTerms,
   validateSpace,
@@ -34,6 +37,8 @@ import {
   type Generator,
 } from './fractional-factorial';
 import { centreRuns } from './full-factorial';
+import { blockFullFactorial, blockTwoLevel, type FactorialBlocking } from './blocking';
+import { codedLevels } from './levels';
 import { plackettBurmanDesign } from './plackett-burman';
 import { blockFactor, optimalDesign, type OptimalDesignOptions } from './optimal-design';
 import {
@@ -44,6 +49,7 @@ import {
   type DesignRun,
   type DesignSpec,
   type FractionSummary,
+  type BlockingSummary,
 } from './types';
 
 const MODELS: readonly StandardModel[] = ['main-effects', 'interactions', 'quadratic'];
@@ -63,14 +69,18 @@ export function defaultModel(method: DesignSpec['method']): StandardModel {
 
 export const DEFAULT_SEED = 1;
 
+/** Methods that take `blocks`. */
+const BLOCKED_METHODS: readonly DesignSpec['method'][] = ['full-factorial', 'fractional-factorial', 'central-composite', 'optimal'];
+
 function checkSpec(spec: DesignSpec): void {
   if (!spec || typeof spec !== 'object') throw invalidInput('(body)', 'send a design request object');
   if (!DESIGN_METHODS.includes(spec.method)) throw invalidInput('method', `method must be one of: ${DESIGN_METHODS.join(', ')}`);
   if (spec.model !== undefined && !MODELS.includes(spec.model)) throw invalidInput('model', `model must be one of: ${MODELS.join(', ')}`);
   if (spec.seed !== undefined && !Number.isInteger(spec.seed)) throw invalidInput('seed', 'seed must be a whole number');
   validateSpace({ factors: spec.factors, constraints: spec.constraints, disallowed: spec.disallowed });
-  if (spec.blocks !== undefined && spec.blocks > 1 && spec.method !== 'optimal' && spec.method !== 'central-composite') {
-    throw new DomainError('unsupported', `blocks apply to optimal and central composite designs; ${spec.method} designs here are not blocked`, 'blocks');
+  if (spec.blocks !== undefined && (!Number.isInteger(spec.blocks) || spec.blocks < 1)) throw invalidInput('blocks', 'blocks must be a whole number of at least 1');
+  if (spec.blocks !== undefined && spec.blocks > 1 && !BLOCKED_METHODS.includes(spec.method)) {
+    throw new DomainError('unsupported', `blocks apply to ${BLOCKED_METHODS.join(', ')} designs; ${spec.method} designs here are not blocked`, 'blocks');
   }
   if (spec.wholePlots !== undefined && spec.method !== 'optimal') {
     throw new DomainError('unsupported', 'whole plots (split-plot designs) are built by the optimal method; set method to "optimal"', 'wholePlots');
@@ -82,13 +92,35 @@ function space(spec: DesignSpec): FactorSpace {
 }
 
 /** What a construction adds to the diagnostics besides the runs. */
-type Extras = Pick<DesignDiagnostics, 'fraction' | 'axialDistance' | 'optimal'>;
+type Extras = Pick<DesignDiagnostics, 'fraction' | 'axialDistance' | 'optimal'> & { blocking?: FactorialBlocking };
 
 function replicate(runs: CodedRun[], replicates: number | undefined): CodedRun[] {
   const r = replicates ?? 1;
   if (!Number.isInteger(r) || r < 1) throw invalidInput('replicates', 'replicates must be a whole number of at least 1');
   const out: CodedRun[] = [];
   for (let i = 0; i < r; i++) for (const run of runs) out.push({ ...run, coded: run.coded.slice() });
+  return out;
+}
+
+/** Longest effect that must stay clear of blocks: two-factor interactions when the model has them. */
+function protectedLength(model: StandardModel): number {
+  return model === 'main-effects' ? 1 : 2;
+}
+
+/**
+ * Blocked runs of a factorial: each replicate is split into the same blocks (blocks of later
+ * replicates numbered on), and every block gets `centerPoints` centre runs.
+ */
+function blockedFactorialRuns(factors: readonly Factor[], rows: readonly CodedRun[], blocking: FactorialBlocking, spec: DesignSpec): CodedRun[] {
+  const r = spec.replicates ?? 1;
+  if (!Number.isInteger(r) || r < 1) throw invalidInput('replicates', 'replicates must be a whole number of at least 1');
+  const n0 = spec.centerPoints ?? 0;
+  if (!Number.isInteger(n0) || n0 < 0) throw invalidInput('centerPoints', 'centerPoints must be a whole number of at least 0');
+  const out: CodedRun[] = [];
+  for (let rep = 0; rep < r; rep++) {
+    for (const row of rows) out.push({ coded: row.coded.slice(), block: rep * blocking.blocks + row.block! });
+    for (let b = 1; b <= blocking.blocks; b++) out.push(...centreRuns(factors, n0).map((c) => ({ ...c, block: rep * blocking.blocks + b })));
+  }
   return out;
 }
 
@@ -149,8 +181,14 @@ function fractionalFactorial(spec: DesignSpec, model: StandardModel, extras: Ext
     generators = chooseFraction(k, resolution, spec.runs);
   }
   extras.fraction = summariseFraction(factors, generators);
-  const coded = fractionRuns(k, generators).map((row) => ({ coded: row.map((pm, j) => twoLevelCoded(factors[j]!, pm)) }));
-  return withCentres(factors, replicate(coded, spec.replicates), spec.centerPoints);
+  const pm = fractionRuns(k, generators);
+  const toCoded = (row: number[]) => row.map((v, j) => twoLevelCoded(factors[j]!, v));
+  if ((spec.blocks ?? 1) > 1) {
+    const blocking = blockTwoLevel(k, generators, spec.blocks!, protectedLength(model), factors.map((f) => f.name));
+    extras.blocking = blocking;
+    return blockedFactorialRuns(factors, pm.map((row) => ({ coded: toCoded(row), block: blocking.blockOf(row) })), blocking, spec);
+  }
+  return withCentres(factors, replicate(pm.map((row) => ({ coded: toCoded(row) })), spec.replicates), spec.centerPoints);
 }
 
 function construct(
@@ -183,8 +221,14 @@ function construct(
       }
       return out.runs;
     }
-    case 'full-factorial':
-      return fullFactorialDesign(factors, { model, replicates: spec.replicates, centerPoints: spec.centerPoints });
+    case 'full-factorial': {
+      if ((spec.blocks ?? 1) === 1) return fullFactorialDesign(factors, { model, replicates: spec.replicates, centerPoints: spec.centerPoints });
+      const rows = fullFactorialDesign(factors, { model });
+      const levelLists = factors.map((f) => codedLevels(f, model === 'quadratic' ? [-1, 0, 1] : [-1, 1]));
+      const blocking = blockFullFactorial(levelLists, spec.blocks!, protectedLength(model), factors.map((f) => f.name));
+      extras.blocking = blocking;
+      return blockedFactorialRuns(factors, rows.map((r) => ({ coded: r.coded, block: blocking.blockOf(r.coded) })), blocking, spec);
+    }
     case 'fractional-factorial':
       return fractionalFactorial(spec, model, extras);
     case 'plackett-burman': {
@@ -201,6 +245,7 @@ function construct(
         blocks: spec.blocks,
       });
       extras.axialDistance = d.alpha;
+      if (d.blocking) extras.blocking = d.blocking;
       if (d.alpha > 1 + 1e-12) {
         notes.push(`axial runs sit at ±${d.alpha.toFixed(4)} in coded units, beyond the factor ranges; check the rig can reach them`);
       } else if (d.alpha < 1 - 1e-12) {
@@ -289,6 +334,51 @@ function naturalValues(factors: readonly Factor[], coded: readonly number[]) {
   return decodePoint(factors, coded);
 }
 
+/** Block sizes, generators, confounded effects and the orthogonality of the model columns to blocks. */
+function blockingSummary(factors: readonly Factor[], terms: readonly ModelTerm[], runs: readonly DesignRun[], scheme: FactorialBlocking | undefined): BlockingSummary {
+  const ids = [...new Set(runs.map((r) => r.block ?? 0))].sort((a, b) => a - b);
+  const model = compileModel(factors, terms);
+  const { data, n, p } = modelMatrix(model, runs.map((r) => r.coded));
+  let maxCorrelation = 0;
+  let orthogonal = true;
+  for (let j = 0; j < p; j++) {
+    if (model.labels[j] === '(Intercept)') continue;
+    let mean = 0;
+    let ss = 0;
+    for (let i = 0; i < n; i++) mean += data[i * p + j]!;
+    mean /= n;
+    for (let i = 0; i < n; i++) ss += (data[i * p + j]! - mean) ** 2;
+    for (const b of ids) {
+      // Covariance of column j with the indicator of block b: Σ over the block of (x − mean).
+      let cov = 0;
+      let size = 0;
+      runs.forEach((r, i) => {
+        if ((r.block ?? 0) !== b) return;
+        cov += data[i * p + j]! - mean;
+        size++;
+      });
+      const zss = size - (size * size) / n;
+      if (Math.abs(cov) > 1e-9 * Math.max(1, Math.sqrt(ss * n))) orthogonal = false;
+      if (ss > 0 && zss > 0) maxCorrelation = Math.max(maxCorrelation, Math.abs(cov) / Math.sqrt(ss * zss));
+    }
+  }
+  const fresh = ids.filter((b) => b !== 0);
+  return {
+    blocks: fresh.length,
+    runsPerBlock: ids.map((block) => ({ block, runs: runs.filter((r) => (r.block ?? 0) === block).length })),
+    generators: scheme?.generators ?? [],
+    confounded: scheme?.confounded ?? [],
+    orthogonal,
+    maxBlockCorrelation: maxCorrelation,
+  };
+}
+
+/** Mark main effects and two-factor interactions of a fraction's alias list that are confounded with blocks. */
+function markBlockAliases(fraction: FractionSummary, scheme: FactorialBlocking): FractionSummary {
+  const words = new Set(scheme.confounded.flatMap((c) => [c.effect, ...c.aliases]));
+  return { ...fraction, aliases: fraction.aliases.map((a) => (words.has(a.effect) ? { ...a, aliases: [...a.aliases, 'Blocks'] } : a)) };
+}
+
 /**
  * Build the design a request describes. `options` carries the search controls of optimal designs
  * (progress callback, stop check) that have no place in a JSON request.
@@ -338,7 +428,12 @@ export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions =
   } else {
     base = designDiagnostics(spec.factors, terms, runs.map((r) => r.coded), notes, diagnosticsOptions);
   }
-  const diagnostics: DesignDiagnostics = { ...base, ...extras };
+  const { blocking: scheme, ...rest } = extras;
+  const diagnostics: DesignDiagnostics = { ...base, ...rest };
+  if (blockIds.size > 1 || runs.some((r) => r.block !== undefined)) {
+    diagnostics.blocking = blockingSummary(spec.factors, terms, runs, scheme);
+    if (scheme && diagnostics.fraction) diagnostics.fraction = markBlockAliases(diagnostics.fraction, scheme);
+  }
   if (diagnostics.optimal?.wholePlots !== undefined && diagnostics.optimal.criterion === 'D' && Number.isFinite(diagnostics.optimal.value)) {
     diagnostics.optimal.generalisedDEfficiency = Math.exp(diagnostics.optimal.value / base.parameters) / base.runs;
   }

@@ -103,6 +103,8 @@ export interface DesignDiagnostics {
   notes: string[];
   /** Two-level fractions: generators, defining relation, word-length pattern and aliases. */
   fraction?: FractionSummary;
+  /** Blocked designs: block sizes, block generators, the effects confounded with blocks, orthogonality. */
+  blocking?: BlockingSummary;
   /** Central composite designs: the axial distance in coded units. */
   axialDistance?: number;
   /** Optimal designs: what the search optimised and how far it got. */
@@ -131,6 +133,20 @@ export interface FractionSummary {
   wordLengthPattern: Record<string, number>;
   /** For each main effect and two-factor interaction, the others it is aliased with. */
   aliases: { effect: string; aliases: string[] }[];
+}
+
+export interface BlockingSummary {
+  /** Number of blocks of the new runs (runs already made, when any, sit apart in block 0). */
+  blocks: number;
+  runsPerBlock: { block: number; runs: number }[];
+  /** Factorial designs: the interactions whose levels define the blocks, named by factor. */
+  generators: string[];
+  /** Effects confounded with blocks (each with the other words of its alias set in a fraction). */
+  confounded: { effect: string; aliases: string[] }[];
+  /** True when every model column is orthogonal to the block effects, so blocks do not bias the estimates. */
+  orthogonal: boolean;
+  /** Largest |correlation| between a model column and a block indicator. */
+  maxBlockCorrelation: number;
 }
 
 export interface PowerSettings {

@@ -85,7 +85,7 @@ describe('POST /api/v1/designs: optimal and split-plot requests', () => {
   });
 
   it('answers 400 naming blocks or whole plots on methods that do not take them, and 422 naming inestimable terms', async () => {
-    const blocked = await post({ factors, method: 'full-factorial', blocks: 2 });
+    const blocked = await post({ factors, method: 'sobol', blocks: 2 });
     expect(blocked.status).toBe(400);
     expect(((await blocked.json()) as { error: { field: string } }).error.field).toBe('blocks');
     const plots = await post({ factors, method: 'full-factorial', wholePlots: 2 });
