@@ -7,6 +7,7 @@
 // Businger & Golub (1965), Numer. Math. 7:269-276 (Householder QR with column pivoting)
 // Björck (1967), BIT 7:257-278 (iterative refinement of linear least squares via the augmented system)
 import { dot2 } from './compensated';
+import { chunkedTriangle } from './tall-qr';
 
 export interface LeastSquaresOptions {
   /** A column whose part not explained by the columns before it is at or below rankTolerance of its norm is aliased. */
@@ -313,34 +314,91 @@ function refineAugmented(qr: PivotedQr, z: Float64Array, zLow: Float64Array | nu
   for (let i = 0; i < n; i++) r[i] += f[i]!;
 }
 
+/** Smallest n·p for the chunked triangle: below it the direct factorisation (and refinement) cost little. */
+const CHUNKED_MIN_SIZE = 200_000;
+/** Rows per block when forming residuals column by column. */
+const RESIDUAL_BLOCK = 2048;
+
+interface StartingSolution {
+  /** Pivoted QR whose R is the R of X (of X itself, or of X's triangle). */
+  qr: PivotedQr;
+  /** Solution in scaled, pivoted coordinates (length rank). */
+  c: Float64Array;
+  conditionEstimate: number;
+}
+
+/** Refinement steps for the coefficients and whether the covariance is refined, as the options and conditioning ask. */
+function refinementPlan(options: LeastSquaresOptions, n: number, p: number, conditionEstimate: number): { steps: number; refineCovariance: boolean; refine: boolean } {
+  const illConditioned = conditionEstimate > ILL_CONDITIONED;
+  // Refinement: always when ill-conditioned; once for well-conditioned problems of modest size,
+  // where it costs little; not for large well-conditioned ones, where QR alone is accurate to
+  // about n·κ·ε and the extended-precision passes would dominate the time.
+  const steps = options.refinementSteps ?? (illConditioned ? 3 : n * p <= CHUNKED_MIN_SIZE ? 1 : 0);
+  const refineCov = options.refineCovariance ?? 'auto';
+  const refineCovariance = refineCov === true || (refineCov === 'auto' && illConditioned);
+  return { steps, refineCovariance, refine: steps > 0 || refineCovariance };
+}
+
+function conditionOf(qr: PivotedQr): number {
+  let dmax = 0;
+  let dmin = Infinity;
+  for (let k = 0; k < qr.rank; k++) {
+    dmax = Math.max(dmax, Math.abs(qr.diag[k]!));
+    dmin = Math.min(dmin, Math.abs(qr.diag[k]!));
+  }
+  return qr.rank > 0 ? dmax / dmin : Infinity;
+}
+
+function chunkedEligible(n: number, p: number, options: LeastSquaresOptions): boolean {
+  if (n * p <= CHUNKED_MIN_SIZE || n < 4 * (p + 1)) return false;
+  return !((options.refinementSteps ?? 0) > 0 || options.refineCovariance === true);
+}
+
+/** Householder QR with column pivoting of X itself, and the solution from it. */
+function directStart(x: Float64Array, yv: Float64Array, n: number, p: number, options: LeastSquaresOptions): StartingSolution {
+  const qr = pivotedQr(x, n, p, options.rankTolerance);
+  // Initial solution c (scaled, pivoted order).
+  const qty = Float64Array.from(yv);
+  applyQt(qr, qty);
+  const c = qty.slice(0, qr.rank);
+  solveR(qr, c);
+  return { qr, c, conditionEstimate: conditionOf(qr) };
+}
+
+/**
+ * The triangle R₀ and Q₀ᵀy of [X y] by chunks, then Householder QR with column pivoting and rank
+ * detection of R₀ (p × p): X Π = Q₀ Q₁ R, so R, the pivots and the rank are those of X.
+ */
+function chunkedStart(x: Float64Array, yv: Float64Array, n: number, p: number, options: LeastSquaresOptions): StartingSolution {
+  const q = p + 1;
+  const t = chunkedTriangle(x, yv, n, p);
+  const r0 = new Float64Array(p * p);
+  for (let j = 0; j < p; j++) for (let i = 0; i <= j; i++) r0[j * p + i] = t[j * q + i]!;
+  // The rank tolerance is that of the n × p problem.
+  const qr = pivotedQr(r0, p, p, options.rankTolerance ?? Math.max(n, p) * 1e-15);
+  const z = t.slice(p * q, p * q + p);
+  applyQt(qr, z);
+  const c = z.slice(0, qr.rank);
+  solveR(qr, c);
+  return { qr, c, conditionEstimate: conditionOf(qr) };
+}
+
 /**
  * Least squares fit of y on the columns of X (column-major n × p). Aliased columns (beyond the
  * numerical rank) get NaN coefficients; the others are the fit on the estimable basis.
  */
 export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p: number, options: LeastSquaresOptions = {}): LeastSquaresFit {
-  const qr = pivotedQr(x, n, p, options.rankTolerance);
-  const { rank, pivot, scale } = qr;
   const yv = Float64Array.from(y);
-  // Initial solution c (scaled, pivoted order).
-  const qty = Float64Array.from(yv);
-  applyQt(qr, qty);
-  const c = qty.slice(0, rank);
-  solveR(qr, c);
-  let dmax = 0;
-  let dmin = Infinity;
-  for (let k = 0; k < rank; k++) {
-    dmax = Math.max(dmax, Math.abs(qr.diag[k]!));
-    dmin = Math.min(dmin, Math.abs(qr.diag[k]!));
-  }
-  const conditionEstimate = rank > 0 ? dmax / dmin : Infinity;
+  // Large problems: the triangle of [X y] by chunks, then pivoting and rank detection on it; used
+  // unless the conditioning calls for refinement, which needs the reflectors of X itself.
+  let start = chunkedEligible(n, p, options) ? chunkedStart(x, yv, n, p, options) : null;
+  if (start && refinementPlan(options, n, p, start.conditionEstimate).refine) start = null;
+  start ??= directStart(x, yv, n, p, options);
+  const { qr, c, conditionEstimate } = start;
+  const { rank, pivot, scale } = qr;
+  const { steps, refineCovariance: doRefine } = refinementPlan(options, n, p, conditionEstimate);
   const illConditioned = conditionEstimate > ILL_CONDITIONED;
 
-  // Refinement: always when ill-conditioned; once for well-conditioned problems of modest size,
-  // where it costs little; not for large well-conditioned ones, where QR alone is accurate to
-  // about n·κ·ε and the extended-precision passes would dominate the time.
-  const steps = options.refinementSteps ?? (illConditioned ? 3 : n * p <= 200_000 ? 1 : 0);
-  const refineCov = options.refineCovariance ?? 'auto';
-  const doRefine = refineCov === true || (refineCov === 'auto' && illConditioned);
   const r = new Float64Array(n);
   let z: Float64Array | null = null;
   let zLow: Float64Array | null = null;
@@ -352,13 +410,17 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
     for (let i = 0; i < n; i++) r[i] = residualRow(z, zLow, n, rank, i, c, yv[i]!, 0);
     for (let s = 0; s < steps; s++) refineAugmented(qr, z, zLow, r, c, yv, null);
   } else {
-    // r = y − Σ_k x_{pivot k} · c_k / scale, column by column.
+    // r = y − Σ_k x_{pivot k} · c_k / scale, column by column within blocks of rows (r stays in cache).
     r.set(yv);
-    for (let k = 0; k < rank; k++) {
-      const col = pivot[k]!;
-      const ck = c[k]! / scale[col]!;
-      const off = col * n;
-      for (let i = 0; i < n; i++) r[i] -= x[off + i]! * ck;
+    const ck = new Float64Array(rank);
+    for (let k = 0; k < rank; k++) ck[k] = c[k]! / scale[pivot[k]!]!;
+    for (let i0 = 0; i0 < n; i0 += RESIDUAL_BLOCK) {
+      const i1 = Math.min(n, i0 + RESIDUAL_BLOCK);
+      for (let k = 0; k < rank; k++) {
+        const off = pivot[k]! * n;
+        const b = ck[k]!;
+        for (let i = i0; i < i1; i++) r[i] -= x[off + i]! * b;
+      }
     }
   }
 

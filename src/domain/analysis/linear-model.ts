@@ -55,8 +55,8 @@ function partialSs(fit: LeastSquaresFit, positions: number[]): number {
 
 /** Pure-error sum of squares from runs that share the same factor setting. */
 function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number; groups: number } {
-  // Group by a numeric hash of the setting; a hash shared by different settings (rare) falls back
-  // to an exact text key.
+  // Group runs by setting in an open-addressing table (hash of the values' bits, linear probing,
+  // exact comparison of the settings on a hash match): typed arrays only, no per-run objects.
   const buf = new Float64Array(1);
   const bits = new Uint32Array(buf.buffer);
   const cols = frame.factorColumns;
@@ -66,37 +66,38 @@ function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number
     for (let j = 0; j < k; j++) if (cols[j]![a] !== cols[j]![b]) return false;
     return true;
   };
+  let size = 16;
+  while (size < 2 * n) size *= 2;
+  const mask = size - 1;
+  const table = new Int32Array(size).fill(-1);
   const groupOf = new Int32Array(n);
-  const firstOfHash = new Map<number, number>();
-  const byText = new Map<string, number>();
-  const representative: number[] = [];
+  const representative = new Int32Array(n);
+  let groups = 0;
   for (let i = 0; i < n; i++) {
     let h = 0x811c9dc5;
     for (let j = 0; j < k; j++) {
       const v = cols[j]![i]!;
       buf[0] = v === 0 ? 0 : v; // −0 and 0 alike
-      h = Math.imul(h ^ bits[0]!, 0x01000193) >>> 0;
-      h = Math.imul(h ^ bits[1]!, 0x01000193) >>> 0;
+      h = Math.imul(h ^ bits[0]!, 0x01000193);
+      h = Math.imul(h ^ bits[1]!, 0x01000193);
     }
-    const g = firstOfHash.get(h);
-    if (g === undefined) {
-      firstOfHash.set(h, representative.length);
-      groupOf[i] = representative.length;
-      representative.push(i);
-    } else if (same(representative[g]!, i)) {
-      groupOf[i] = g;
-    } else {
-      const key = Array.from({ length: k }, (_, j) => cols[j]![i]! + 0).join('|');
-      let t = byText.get(key);
-      if (t === undefined) {
-        t = representative.length;
-        byText.set(key, t);
-        representative.push(i);
+    h ^= h >>> 15;
+    let slot = h & mask;
+    for (;;) {
+      const g = table[slot]!;
+      if (g < 0) {
+        table[slot] = groups;
+        representative[groups] = i;
+        groupOf[i] = groups++;
+        break;
       }
-      groupOf[i] = t;
+      if (same(representative[g]!, i)) {
+        groupOf[i] = g;
+        break;
+      }
+      slot = (slot + 1) & mask;
     }
   }
-  const groups = representative.length;
   if (groups === n) return { ss: 0, df: 0, groups };
   // Two passes per group: mean, then squared deviations with the usual correction term.
   const count = new Float64Array(groups);

@@ -149,29 +149,20 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
   if (usedNames.includes(response)) throw invalidInput('response', `the response "${response}" also appears among the terms; a response cannot explain itself`);
 
   const given = request.factors;
+  const fast = numericFrame(request, intercept, parsed, usedNames);
+  if (fast) return fast;
   const columns = numericColumns(data, [...usedNames, response]);
   const factors: Factor[] = given ? usedNames.map((nm) => given.find((f) => f.name === nm)!) : inferFactors(data, usedNames, columns);
   const coding: Coding = request.coding ?? (given ? 'coded' : 'natural');
-  if (coding === 'coded') {
-    for (const f of factors) {
-      if (f.kind === 'continuous' && !(f.high > f.low)) {
-        throw invalidInput('coding', `factor ${f.name} takes a single value (${f.low}) in the data, so it cannot be coded onto [-1, 1]`);
-      }
-    }
-  }
+  checkCoding(factors, coding);
   const terms = intercept ? [INTERCEPT, ...parsed] : parsed;
   const model = compileModel(factors, terms);
   const p = model.p;
-
   const rowIndex: number[] = [];
   const excludedRows: number[] = [];
   const k = factors.length;
   const yAll = new Float64Array(data.length);
-  const numericCoding = factors.map((f) => {
-    if (f.kind === 'categorical' || coding !== 'coded') return null;
-    const { low, high } = f.kind === 'continuous' ? { low: f.low, high: f.high } : { low: Math.min(...f.values), high: Math.max(...f.values) };
-    return { low, range: high - low };
-  });
+  const numericCoding = factors.map((f) => codingOf(f, coding));
   const names = factors.map((f) => f.name);
   const fastColumns = factors.map((f, j) => (f.kind === 'categorical' ? null : columns[j]!));
   const yColumn = columns[usedNames.length]!;
@@ -227,8 +218,6 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     for (let t = 0; t < n; t++) for (let j = 0; j < k; j++) v[t * k + j] = factorColumns[j]![t]!;
     return (valuesCache = v);
   };
-  let pointViews: Float64Array[] | undefined;
-  const pointsOf = () => (pointViews ??= Array.from({ length: n }, (_, i) => valuesOf().subarray(i * k, (i + 1) * k)));
   const x = new Float64Array(n * p);
   if (factors.every((f) => f.kind !== 'categorical')) {
     // Column by column: each column is a product of factor powers.
@@ -256,6 +245,149 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     }
   }
 
+  return assembleFrame({ factors, coding, intercept, terms, model, n, p, x, y: yAll.slice(0, n), factorColumns, rowIndex: () => rowIndex, excludedRows, pointMatrix: valuesOf });
+}
+
+function checkCoding(factors: readonly Factor[], coding: Coding): void {
+  if (coding !== 'coded') return;
+  for (const f of factors) {
+    if (f.kind === 'continuous' && !(f.high > f.low)) {
+      throw invalidInput('coding', `factor ${f.name} takes a single value (${f.low}) in the data, so it cannot be coded onto [-1, 1]`);
+    }
+  }
+}
+
+/** Low end and range of a numeric factor's coding onto [-1, 1]; null for natural units and categorical factors. */
+function codingOf(f: Factor, coding: Coding): { low: number; range: number } | null {
+  if (f.kind === 'categorical' || coding !== 'coded') return null;
+  const { low, high } = f.kind === 'continuous' ? { low: f.low, high: f.high } : { low: Math.min(...f.values), high: Math.max(...f.values) };
+  return { low, range: high - low };
+}
+
+/**
+ * The common case built in one pass over the rows: every factor numeric, every cell of the factor
+ * and response columns a finite number. Each row is read once; a factor that enters the model as a
+ * main effect is read straight into its model-matrix column (which also serves as its factor
+ * column), and product and power columns are then formed from those columns. Returns null when the
+ * data need the general path (missing or text cells, categorical factors), which also words the errors.
+ */
+function numericFrame(request: AnalysisRequest, intercept: boolean, parsed: ModelTerm[], usedNames: string[]): ModelFrame | null {
+  const { data, response } = request;
+  const given = request.factors;
+  const givenFactors = given ? usedNames.map((nm) => given.find((f) => f.name === nm)) : null;
+  if (givenFactors && givenFactors.some((f) => !f || f.kind === 'categorical')) return null;
+  const terms = intercept ? [INTERCEPT, ...parsed] : parsed;
+  const n = data.length;
+  const p = terms.length;
+  const k = usedNames.length;
+  const x = new Float64Array(n * p);
+  // A factor's column: the model-matrix column of its main effect, or a column of its own.
+  const factorColumns = usedNames.map((name) => {
+    const col = terms.findIndex((t) => t.parts.length === 1 && t.parts[0]!.name === name && t.parts[0]!.power === 1);
+    return col >= 0 ? x.subarray(col * n, (col + 1) * n) : new Float64Array(n);
+  });
+  const y = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const row = data[i];
+    if (row === null || typeof row !== 'object') return null;
+    for (let j = 0; j < k; j++) {
+      const v = row[usedNames[j]!];
+      factorColumns[j]![i] = typeof v === 'number' ? v : NaN;
+    }
+    const v = row[response];
+    y[i] = typeof v === 'number' ? v : NaN;
+  }
+  const lows = new Float64Array(k);
+  const highs = new Float64Array(k);
+  for (let j = 0; j <= k; j++) {
+    const col = j < k ? factorColumns[j]! : y;
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (let i = 0; i < n; i++) {
+      const v = col[i]!;
+      if (v !== v || v === Infinity || v === -Infinity) return null;
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+    if (j < k) {
+      lows[j] = lo;
+      highs[j] = hi;
+    }
+  }
+  const factors: Factor[] = givenFactors
+    ? (givenFactors as Factor[])
+    : usedNames.map((name, j) => ({ name, kind: 'continuous', low: lows[j]!, high: highs[j]! }) as Factor);
+  const coding: Coding = request.coding ?? (given ? 'coded' : 'natural');
+  checkCoding(factors, coding);
+  const model = compileModel(factors, terms);
+  if (model.p !== p) return null;
+  factors.forEach((f, j) => {
+    const c = codingOf(f, coding);
+    if (!c) return;
+    const col = factorColumns[j]!;
+    for (let i = 0; i < n; i++) col[i] = (2 * (col[i]! - c.low)) / c.range - 1;
+  });
+  // Columns that are not a factor's own: the intercept, products and powers.
+  const factorIdx = new Map(usedNames.map((nm, j) => [nm, j]));
+  terms.forEach((t, col) => {
+    const off = col * n;
+    if (t.parts.length === 1 && t.parts[0]!.power === 1) return;
+    x.fill(1, off, off + n);
+    for (const part of t.parts) {
+      const src = factorColumns[factorIdx.get(part.name)!]!;
+      const pw = part.power;
+      for (let i = 0; i < n; i++) {
+        const v = src[i]!;
+        x[off + i] *= pw === 1 ? v : pw === 2 ? v * v : Math.pow(v, pw);
+      }
+    }
+  });
+  let rowIndex: number[] | undefined;
+  let values: Float64Array | undefined;
+  return assembleFrame({
+    factors,
+    coding,
+    intercept,
+    terms,
+    model,
+    n,
+    p,
+    x,
+    y,
+    factorColumns,
+    rowIndex: () => (rowIndex ??= Array.from({ length: n }, (_, i) => i)),
+    excludedRows: [],
+    pointMatrix: () => {
+      if (values) return values;
+      values = new Float64Array(Math.max(1, n * k));
+      for (let t = 0; t < n; t++) for (let j = 0; j < k; j++) values[t * k + j] = factorColumns[j]![t]!;
+      return values;
+    },
+  });
+}
+
+interface FrameParts {
+  factors: Factor[];
+  coding: Coding;
+  intercept: boolean;
+  terms: ModelTerm[];
+  model: CompiledModel;
+  n: number;
+  p: number;
+  x: Float64Array;
+  y: Float64Array;
+  factorColumns: Float64Array[];
+  rowIndex: () => number[];
+  excludedRows: number[];
+  pointMatrix: () => Float64Array;
+}
+
+/** The model frame from its parts: points, row indices and low-order parts are made on first use. */
+function assembleFrame(parts: FrameParts): ModelFrame {
+  const { factors, coding, intercept, terms, model, n, p, x, y, factorColumns, excludedRows } = parts;
+  const k = factors.length;
+  let pointViews: Float64Array[] | undefined;
+  const pointsOf = () => (pointViews ??= Array.from({ length: n }, (_, i) => parts.pointMatrix().subarray(i * k, (i + 1) * k)));
   // Columns whose entries are products of two or more numeric values may be rounded.
   const factorIndex = new Map(factors.map((f, i) => [f.name, i]));
   const productTerms = new Set<number>();
@@ -302,15 +434,17 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     n,
     p,
     x,
-    y: yAll.slice(0, n),
+    y,
     get points() {
       return pointsOf();
     },
     get pointMatrix() {
-      return valuesOf();
+      return parts.pointMatrix();
     },
     factorColumns,
-    rowIndex,
+    get rowIndex() {
+      return parts.rowIndex();
+    },
     excludedRows,
     lowParts,
   };
