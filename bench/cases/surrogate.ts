@@ -70,6 +70,9 @@ export const cases: BenchCase[] = [
     report: () => ({
       logMarginalLikelihood: Number(lastFit!.logMarginalLikelihoodStandardised.toFixed(4)),
       noiseVariance: lastFit!.noiseVariance / lastFit!.yScale ** 2,
+      starts: lastFit!.optimisation?.starts ?? 0,
+      likelihoodEvaluations: lastFit!.optimisation?.evaluations ?? 0,
+      gradientEvaluations: lastFit!.optimisation?.gradientEvaluations ?? 0,
     }),
     reference: { script: 'surrogate_gp_fit.py', args: ['500', '6', '1'], label: 'scikit-learn GaussianProcessRegressor', maxRatio: 1 },
   },

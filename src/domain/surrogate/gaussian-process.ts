@@ -8,9 +8,9 @@
 import { invalidInput } from '../errors';
 import type { Factor } from '../factors';
 import { seededRandom } from '../random';
-import { correlation, lengthScaleSensitivity, type KernelKind } from './kernels';
+import { correlation, type KernelKind } from './kernels';
 import { minimizeBounded } from './lbfgs';
-import { choleskyInPlace, choleskyLogDet, inverseFromCholesky, solveLower, solveUpperTransposed } from './linear-algebra';
+import { choleskyInPlace, choleskyLogDet, inverseFromCholesky, inverseLowerFromCholesky, solveLower, solveUpperTransposed } from './linear-algebra';
 
 const LOG_2PI = Math.log(2 * Math.PI);
 /** Added to the diagonal for numerical stability (in standardised response units). */
@@ -62,6 +62,8 @@ export interface GaussianProcessModel {
   alpha: Float64Array;
   /** Standardised training responses. */
   yStandardised: Float64Array;
+  /** Work done by the hyperparameter search (all zero with fixed hyperparameters). */
+  optimisation?: { starts: number; iterations: number; evaluations: number; gradientEvaluations: number };
 }
 
 /** Per-pair, per-dimension squared differences for the lower triangle (i > j), pair-major. */
@@ -91,7 +93,30 @@ interface LikelihoodWork {
   d: number;
   kind: KernelKind;
   y: Float64Array;
+  /** Per-pair, per-dimension squared differences (computed once per fit). */
   diffs: Float64Array;
+  /** Buffers reused across evaluations: K and its factor, r² per pair, L⁻ᵀ and the lower triangle of K⁻¹. */
+  k: Float64Array;
+  r2: Float64Array;
+  u: Float64Array | null;
+  inv: Float64Array | null;
+  /** Increments whenever `k` is overwritten, so a deferred gradient knows whether its factor is still there. */
+  generation: number;
+  evaluations: number;
+  gradients: number;
+}
+
+function likelihoodWork(n: number, d: number, kind: KernelKind, y: Float64Array, diffs: Float64Array): LikelihoodWork {
+  return {
+    n, d, kind, y, diffs,
+    k: new Float64Array(n * n),
+    r2: new Float64Array((n * (n - 1)) / 2),
+    u: null,
+    inv: null,
+    generation: 0,
+    evaluations: 0,
+    gradients: 0,
+  };
 }
 
 /** Builds K (lower triangle holds the signal part, diagonal the full variance) and r² per pair. */
@@ -128,17 +153,7 @@ export function logMarginalLikelihood(
 ): { value: number; gradient: Float64Array } {
   const d = inputs[0]?.length ?? 0;
   const categorical = (options.categorical ?? new Array<boolean>(d).fill(false)).slice();
-  const work: LikelihoodWork = {
-    n: inputs.length,
-    d,
-    kind: options.kernel ?? 'matern52',
-    y: Float64Array.from(y),
-    diffs: pairwiseSquaredDifferences(inputs, categorical),
-  };
-  return likelihoodAndGradient(work, theta);
-}
-
-function likelihoodAndGradient(work: LikelihoodWork, theta: ArrayLike<number>): { value: number; gradient: Float64Array } {
+  const work = likelihoodWork(inputs.length, d, options.kernel ?? 'matern52', Float64Array.from(y), pairwiseSquaredDifferences(inputs, categorical));
   const r = likelihoodLazy(work, theta);
   return { value: r.value, gradient: r.gradient() };
 }
@@ -146,30 +161,53 @@ function likelihoodAndGradient(work: LikelihoodWork, theta: ArrayLike<number>): 
 /** The value now (one Cholesky factorisation); the gradient (which needs K⁻¹) only when asked for. */
 function likelihoodLazy(work: LikelihoodWork, theta: ArrayLike<number>): { value: number; gradient: () => Float64Array } {
   const { n, d } = work;
-  const k = new Float64Array(n * n);
-  const r2 = new Float64Array((n * (n - 1)) / 2);
-  buildCovariance(work, theta, k, r2);
-  if (!choleskyInPlace(k, n)) return { value: -Infinity, gradient: () => new Float64Array(d + 2) };
-  const alpha = solveUpperTransposed(k, n, solveLower(k, n, work.y));
+  const t = Float64Array.from(theta);
+  const factorised = (): boolean => {
+    work.generation++;
+    work.evaluations++;
+    buildCovariance(work, t, work.k, work.r2);
+    return choleskyInPlace(work.k, n);
+  };
+  if (!factorised()) return { value: -Infinity, gradient: () => new Float64Array(d + 2) };
+  const generation = work.generation;
+  const alpha = solveUpperTransposed(work.k, n, solveLower(work.k, n, work.y));
   let fit = 0;
   for (let i = 0; i < n; i++) fit += work.y[i]! * alpha[i]!;
-  const value = -0.5 * fit - 0.5 * choleskyLogDet(k, n) - 0.5 * n * LOG_2PI;
-  const t = Float64Array.from(theta);
-  return { value, gradient: () => likelihoodGradient(work, t, k, r2, alpha) };
+  const value = -0.5 * fit - 0.5 * choleskyLogDet(work.k, n) - 0.5 * n * LOG_2PI;
+  return {
+    value,
+    gradient: () => {
+      // Another evaluation may have reused the buffers since: factorise again (rare; the optimiser asks at once).
+      if (work.generation !== generation) factorised();
+      return likelihoodGradient(work, t, alpha);
+    },
+  };
 }
 
-function likelihoodGradient(work: LikelihoodWork, theta: Float64Array, k: Float64Array, r2: Float64Array, alpha: Float64Array): Float64Array {
-  const { n, d, kind, diffs } = work;
+const SQRT5 = Math.sqrt(5);
+
+/**
+ * ∂LML/∂θ = ½ Σ_ij W_ij ∂K_ij/∂θ with W = ααᵀ − K⁻¹, formed once (lower triangle) from the factor in `work.k`;
+ * each length-scale component is a sum over pairs i > j of W_ij ∂K_ij, from the cached per-dimension squared
+ * differences (no dense ∂K/∂θ matrices).
+ */
+function likelihoodGradient(work: LikelihoodWork, theta: Float64Array, alpha: Float64Array): Float64Array {
+  const { n, d, kind, diffs, r2 } = work;
+  work.gradients++;
+  work.u ??= new Float64Array(n * n);
+  work.inv ??= new Float64Array(n * n);
+  const kinv = inverseLowerFromCholesky(work.k, n, work.inv, work.u);
   const gradient = new Float64Array(d + 2);
-  const kinv = inverseFromCholesky(k, n);
   const sf2 = Math.exp(theta[d]!);
   const sn2 = Math.exp(theta[d + 1]!);
   const w = new Float64Array(d);
   for (let c = 0; c < d; c++) w[c] = Math.exp(-2 * theta[c]!);
-  // ∂LML/∂θ = ½ tr((ααᵀ − K⁻¹) ∂K/∂θ); each off-diagonal pair counts twice, cancelling the ½.
+  // Each off-diagonal pair counts twice, cancelling the ½.
   let traceW = 0;
   for (let i = 0; i < n; i++) traceW += alpha[i]! * alpha[i]! - kinv[i * n + i]!;
-  let signal = 0.5 * traceW * sf2;
+  let signal = 0.5 * traceW;
+  const lengths = new Float64Array(d);
+  const matern = kind === 'matern52';
   let p = 0;
   for (let i = 1; i < n; i++) {
     const row = i * n;
@@ -177,14 +215,28 @@ function likelihoodGradient(work: LikelihoodWork, theta: Float64Array, k: Float6
     for (let j = 0; j < i; j++) {
       const wij = ai * alpha[j]! - kinv[row + j]!;
       const s = r2[p]!;
-      signal += wij * sf2 * correlation(kind, s);
-      const sens = wij * sf2 * lengthScaleSensitivity(kind, s);
+      // The correlation of kernels.ts and sens = −2 d(correlation)/d(r²), which times (Δ_c/ℓ_c)² gives
+      // d(correlation)/d(log ℓ_c); sharing one sqrt and one exp per pair.
+      let corr: number;
+      let sens: number;
+      if (matern) {
+        const r = Math.sqrt(s);
+        const e = Math.exp(-SQRT5 * r);
+        corr = (1 + SQRT5 * r + (5 / 3) * s) * e;
+        sens = (5 / 3) * (1 + SQRT5 * r) * e;
+      } else {
+        corr = Math.exp(-0.5 * s);
+        sens = corr;
+      }
+      signal += wij * corr;
+      const g = wij * sens;
       const base = p * d;
-      for (let c = 0; c < d; c++) gradient[c] = gradient[c]! + sens * diffs[base + c]! * w[c]!;
+      for (let c = 0; c < d; c++) lengths[c] = lengths[c]! + g * diffs[base + c]!;
       p++;
     }
   }
-  gradient[d] = signal;
+  for (let c = 0; c < d; c++) gradient[c] = lengths[c]! * sf2 * w[c]!;
+  gradient[d] = signal * sf2;
   gradient[d + 1] = 0.5 * sn2 * traceW;
   return gradient;
 }
@@ -221,7 +273,9 @@ export function fitGaussianProcess(inputs: readonly ArrayLike<number>[], y: Arra
   const ys = new Float64Array(n);
   for (let i = 0; i < n; i++) ys[i] = (y[i]! - yMean) / yScale;
   const x = inputs.map((row) => Float64Array.from(row));
-  const work: LikelihoodWork = { n, d, kind, y: ys, diffs: pairwiseSquaredDifferences(x, categorical) };
+  const work = likelihoodWork(n, d, kind, ys, pairwiseSquaredDifferences(x, categorical));
+  let iterations = 0;
+  let startsRun = 0;
 
   let theta: Float64Array;
   if (options.fixed) {
@@ -253,6 +307,7 @@ export function fitGaussianProcess(inputs: readonly ArrayLike<number>[], y: Arra
         gradient: () => r.gradient().map((v) => -v),
       };
     };
+    const settings = { lower, upper, maxIterations: options.maxIterations ?? 150, maxStep: 2, valueTolerance: 1e-8, gradientTolerance: 1e-4 };
     let best: { x: Float64Array; value: number } | null = null;
     for (let s = 0; s < starts; s++) {
       const x0 = new Float64Array(d + 2);
@@ -265,16 +320,18 @@ export function fitGaussianProcess(inputs: readonly ArrayLike<number>[], y: Arra
         x0[d] = Math.log(0.3) + rng.next() * (Math.log(3) - Math.log(0.3));
         x0[d + 1] = Math.log(1e-4) + rng.next() * (Math.log(0.3) - Math.log(1e-4));
       }
-      const r = minimizeBounded(objective, x0, { lower, upper, maxIterations: options.maxIterations ?? 150, maxStep: 2, valueTolerance: 1e-8, gradientTolerance: 1e-4 });
+      const r = minimizeBounded(objective, x0, settings);
+      iterations += r.iterations;
+      startsRun++;
       if (Number.isFinite(r.value) && (best === null || r.value < best.value)) best = { x: r.x, value: r.value };
     }
     if (best === null) throw invalidInput('data', 'the Gaussian process could not be fitted; check for duplicated inputs with very different responses');
     theta = best.x;
   }
 
-  const k = new Float64Array(n * n);
-  const r2 = new Float64Array((n * (n - 1)) / 2);
-  buildCovariance(work, theta, k, r2);
+  const optimisation = { starts: startsRun, iterations, evaluations: work.evaluations, gradientEvaluations: work.gradients };
+  const k = work.k;
+  buildCovariance(work, theta, k, work.r2);
   if (!choleskyInPlace(k, n)) throw invalidInput('data', 'the covariance matrix is not positive definite for these hyperparameters');
   const alpha = solveUpperTransposed(k, n, solveLower(k, n, ys));
   let fit = 0;
@@ -297,6 +354,7 @@ export function fitGaussianProcess(inputs: readonly ArrayLike<number>[], y: Arra
     cholesky: k,
     alpha,
     yStandardised: ys,
+    optimisation,
   };
 }
 

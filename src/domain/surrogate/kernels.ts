@@ -39,13 +39,3 @@ export function correlation(kind: KernelKind, r2: number): number {
   const r = Math.sqrt(r2);
   return (1 + SQRT5 * r + (5 / 3) * r2) * Math.exp(-SQRT5 * r);
 }
-
-/**
- * −2 · d(correlation)/d(r²), which multiplied by (Δ_k/ℓ_k)² gives d(correlation)/d(log ℓ_k).
- * Finite at r = 0 for both kernels.
- */
-export function lengthScaleSensitivity(kind: KernelKind, r2: number): number {
-  if (kind === 'squared-exponential') return Math.exp(-0.5 * r2);
-  const r = Math.sqrt(r2);
-  return (5 / 3) * (1 + SQRT5 * r) * Math.exp(-SQRT5 * r);
-}

@@ -37,6 +37,21 @@ describe('Float64Array Cholesky kernels (checked against ml-matrix)', () => {
     for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) expect(inv[i * n + j]).toBeCloseTo(ref.get(i, j), 8);
   });
 
+  // The kernels work on blocks of two columns and four rows: every remainder case must agree too.
+  it('factor and inverse agree with ml-matrix for every block remainder (n = 1 … 11)', () => {
+    for (let m = 1; m <= 11; m++) {
+      const am = randomSpd(m, 40 + m);
+      const l = Float64Array.from(am.to1DArray());
+      expect(choleskyInPlace(l, m)).toBe(true);
+      const ref = new CholeskyDecomposition(am).lowerTriangularMatrix;
+      for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) expect(l[i * m + j]).toBeCloseTo(ref.get(i, j), 10);
+      const inv = inverseFromCholesky(l, m);
+      const refInv = inverse(am);
+      const scale = Math.max(...refInv.to1DArray().map(Math.abs));
+      for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) expect(Math.abs(inv[i * m + j]! - refInv.get(i, j)) / scale).toBeLessThan(1e-9);
+    }
+  });
+
   it('reports a matrix that is not positive definite', () => {
     const m = Float64Array.from([1, 2, 2, 1]);
     expect(choleskyInPlace(m, 2)).toBe(false);
