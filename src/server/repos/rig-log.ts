@@ -6,13 +6,14 @@
  * or a run already logged from another tablet, answers 409 with both versions, never overwriting.
  */
 import { DomainError, invalidInput } from '@/domain/errors';
-import { checkReadings } from '@/domain/metrics/plausibility';
+import { observationField } from '@/domain/metrics/standard-readings';
+import { checkTrialEntry } from '@/domain/metrics/trial-entry';
 import type { z } from 'zod';
 import type { trialLogSchema } from '@/server/api/schemas/rig';
 import { db } from '@/server/db/client';
 import { cachedCampaign } from './campaigns';
 import { keyIsStored, storeLoggedTrial, VERSION_AFTER_LOG, type LoggedValues, type LogWrite } from './trial-log-store';
-import { finishTrial, standardReadings } from './trials';
+import { finishTrial } from './trials';
 
 export type TrialLogInput = z.output<typeof trialLogSchema>;
 export type { LoggedValues };
@@ -60,11 +61,6 @@ function sameValues(a: LoggedValues, b: LoggedValues): boolean {
  */
 async function prepareEntry(campaignId: string, input: TrialLogInput, key: string, actor: string, now: Date) {
   const campaign = await cachedCampaign(campaignId);
-  for (const name of Object.keys(input.observations)) {
-    if (!campaign.responses.some((r) => r.name === name)) {
-      throw invalidInput(`observations.${name}`, `"${name}" is not a response of this campaign; known: ${campaign.responses.map((r) => r.name).join(', ')}`);
-    }
-  }
   const robot = input.robotId ? campaign.robots.find((r) => r.id === input.robotId) : undefined;
   if (input.robotId && !robot) throw invalidInput('robotId', 'no such robot in this campaign; choose one from the list');
   if (input.rigId && !campaign.rigs.some((r) => r.id === input.rigId)) throw invalidInput('rigId', 'no such rig in this campaign');
@@ -73,16 +69,14 @@ async function prepareEntry(campaignId: string, input: TrialLogInput, key: strin
   const finishedAt = input.finishedAt ? new Date(input.finishedAt) : now;
   if (finishedAt.getTime() < startedAt.getTime()) throw invalidInput('finishedAt', 'the finish time is before the start time; check the tablet clock');
   const passed = input.status === 'failed' ? false : input.passed ?? (input.status === 'done' ? true : undefined);
-  const { readings, fieldOf } = standardReadings(campaign.responses, input.observations);
-  const check = checkReadings(
-    { ...readings, passed, failureReason: input.failureReason || null, startedAt: startedAt.toISOString(), finishedAt: finishedAt.toISOString() },
+  // The same check as the tablet's: known readings (standard or response) and plausible values.
+  const check = checkTrialEntry(
+    campaign.responses,
+    input.observations,
+    { passed, failureReason: input.failureReason, startedAt: startedAt.toISOString(), finishedAt: finishedAt.toISOString() },
     { now: now.toISOString(), robotMassKg: robot ? robot.massGrams / 1000 : null, robotHeightM: robot?.heightMm ? robot.heightMm / 1000 : null },
   );
-  const named = (f: (typeof check.errors)[number]['field']) => (fieldOf[f] ? `observations.${fieldOf[f]}` : f);
-  if (check.errors.length) {
-    const first = check.errors[0]!;
-    throw invalidInput(named(first.field), first.message, { errors: check.errors, warnings: check.warnings });
-  }
+  if (check.errors.length) throw invalidInput(check.errors[0]!.field, check.errors[0]!.message, { errors: check.errors, warnings: check.warnings });
   const write: LogWrite = {
     campaignId,
     runId: input.runId,
@@ -97,11 +91,11 @@ async function prepareEntry(campaignId: string, input: TrialLogInput, key: strin
     finishedAt,
     idempotencyKey: key,
     repeat: input.repeat,
-    observations: Object.entries(input.observations).map(([name, value]) => ({ name, value, unit: campaign.responses.find((r) => r.name === name)?.unit ?? '' })),
+    observations: Object.entries(input.observations).map(([name, value]) => ({ name, value, unit: observationField(campaign.responses, name)?.unit ?? '' })),
     actor,
     now,
   };
-  return { write, warnings: check.warnings.map((w) => ({ field: named(w.field), message: w.message })) };
+  return { write, warnings: check.warnings };
 }
 
 async function findByKey(key: string): Promise<StoredTrial | null> {
