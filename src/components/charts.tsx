@@ -272,3 +272,69 @@ export function InteractionChart({ title, levelsA, lines, xLabel, yLabel }: { ti
     </figure>
   );
 }
+
+export interface PointGroup {
+  label: string;
+  values: number[];
+}
+
+/**
+ * Values grouped by a label (e.g. residuals by whole plot or by rig): one column of points per group,
+ * a short bar at each group's mean and a dashed line at zero.
+ */
+export function GroupedPoints({ title, groups, xLabel, yLabel }: { title: string; groups: PointGroup[]; xLabel: string; yLabel: string }) {
+  const x = scaleBand<string>()
+    .domain(groups.map((g) => g.label))
+    .range([M.left, W - M.right])
+    .padding(0.3);
+  const y = scaleLinear().domain(extent([0, ...groups.flatMap((g) => g.values)])).range([H - M.bottom, M.top]).nice();
+  const bw = x.bandwidth();
+  // Label every group when they fit, else every k-th.
+  const every = Math.max(1, Math.ceil(groups.length / 14));
+  return (
+    <figure className="chart">
+      <svg viewBox={`0 0 ${W} ${H}`} role="img" aria-label={title}>
+        <title>{title}</title>
+        <g fontSize={10} fill="#5b676e">
+          <line x1={M.left} x2={W - M.right} y1={H - M.bottom} y2={H - M.bottom} stroke="#aab4ba" />
+          <line x1={M.left} x2={M.left} y1={M.top} y2={H - M.bottom} stroke="#aab4ba" />
+          {y.ticks(5).map((t) => (
+            <g key={`y${t}`}>
+              <line x1={M.left} x2={W - M.right} y1={y(t)} y2={y(t)} stroke="#eef1f2" />
+              <text x={M.left - 4} y={y(t) + 3} textAnchor="end">
+                {fmt(t)}
+              </text>
+            </g>
+          ))}
+          {groups.map((g, i) =>
+            i % every === 0 ? (
+              <text key={`x${g.label}`} x={x(g.label)! + bw / 2} y={H - M.bottom + 13} textAnchor="middle">
+                {g.label.length > 8 ? `${g.label.slice(0, 7)}…` : g.label}
+              </text>
+            ) : null,
+          )}
+          <text x={(M.left + W - M.right) / 2} y={H - 6} textAnchor="middle" fill="#1d2428">
+            {xLabel}
+          </text>
+          <text transform={`translate(12 ${(M.top + H - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fill="#1d2428">
+            {yLabel}
+          </text>
+        </g>
+        <line x1={M.left} x2={W - M.right} y1={y(0)} y2={y(0)} stroke="#c0392b" strokeDasharray="4 3" />
+        {groups.map((g) => {
+          const cx = x(g.label)! + bw / 2;
+          const mean = g.values.reduce((s, v) => s + v, 0) / g.values.length;
+          return (
+            <g key={g.label}>
+              {g.values.map((v, j) => (
+                <circle key={j} cx={cx} cy={y(v)} r={3} fill="#1f6f5c" fillOpacity={0.7} />
+              ))}
+              <line x1={cx - Math.min(10, bw / 2)} x2={cx + Math.min(10, bw / 2)} y1={y(mean)} y2={y(mean)} stroke="#1d2428" strokeWidth={2} />
+            </g>
+          );
+        })}
+      </svg>
+      <figcaption>{title}</figcaption>
+    </figure>
+  );
+}

@@ -8,6 +8,7 @@ import {
   quadraticForm,
   screeningEffects,
   stationaryPoint,
+  type AnalysisRequest,
   type AnalysisResult,
 } from '@/domain/analysis';
 import { DomainError } from '@/domain/errors';
@@ -20,7 +21,17 @@ import { readAllPaged } from './paged';
 
 export type DataRow = Record<string, number | string>;
 
-/** One row per finished trial that has the response: factor values of its run plus every observation. */
+/**
+ * Extra columns of campaign data rows: the run's whole plot and the rig the trial ran on, where known.
+ * Factor and response names start with a letter, so these never collide with them.
+ */
+export const WHOLE_PLOT_COLUMN = '_wholePlot';
+export const RIG_COLUMN = '_rig';
+
+/**
+ * One row per finished trial that has the response: factor values of its run plus every observation,
+ * in the order the trials started (run order in time), with the whole plot and rig where known.
+ */
 export async function campaignData(campaignId: string): Promise<{ rows: DataRow[]; factors: Factor[] }> {
   const campaign = await getCampaign(campaignId);
   const client = await db();
@@ -30,12 +41,16 @@ export async function campaignData(campaignId: string): Promise<{ rows: DataRow[
       orderBy: [{ startedAt: 'asc' }, { id: 'asc' }],
       skip,
       take,
-      include: { observations: true, run: true },
+      include: { observations: true, run: true, rig: { select: { name: true } } },
     }),
   );
+  // Whole-plot numbers are per design: prefix the design when the trials come from several.
+  const designs = [...new Set(trials.filter((t) => t.run.wholePlot !== null).map((t) => t.run.designId ?? ''))];
   const rows = trials.map((t) => {
     const values = parseJson<DataRow>(t.run.valuesJson, {});
     const row: DataRow = { ...values, run: t.run.runNumber, passed: t.passed === false ? 0 : 1 };
+    if (t.run.wholePlot !== null) row[WHOLE_PLOT_COLUMN] = designs.length > 1 ? `${designs.indexOf(t.run.designId ?? '') + 1}.${t.run.wholePlot}` : String(t.run.wholePlot);
+    if (t.rig) row[RIG_COLUMN] = t.rig.name;
     for (const o of t.observations) row[o.name] = o.value;
     return row;
   });
@@ -64,17 +79,47 @@ export async function fitCampaign(campaignId: string, response: string, model: S
   const usable = rows.filter((r) => typeof r[response] === 'number');
   if (usable.length === 0) throw new DomainError('invalid_input', `no finished trial has a value of ${response} yet; log trials at the rig first`, 'response');
   const chosen = terms ?? supportedTerms(factors, usable, model).terms;
-  const request = { data: usable, response, terms: chosen, factors, coding: 'coded' as const };
-  const result: AnalysisResult = analyze(request);
+  const base = { data: usable, response, terms: chosen, factors, coding: 'coded' as const };
+  const { request, result, splitPlotNote } = fitWithWholePlots(base, factors);
   const client = await db();
   const stored = await client.$transaction(async (tx) => {
     const a = await tx.analysis.create({
-      data: { campaignId, response, termsJson: JSON.stringify(chosen), requestJson: JSON.stringify({ ...request, model }), resultJson: JSON.stringify(result) },
+      data: {
+        campaignId,
+        response,
+        termsJson: JSON.stringify(chosen),
+        requestJson: JSON.stringify({ ...request, model, ...(splitPlotNote ? { splitPlotNote } : {}) }),
+        resultJson: JSON.stringify(result),
+      },
     });
-    await audit(tx, actor, 'fit', 'analysis', a.id, null, { response, terms: chosen, n: usable.length });
+    await audit(tx, actor, 'fit', 'analysis', a.id, null, { response, terms: chosen, n: usable.length, ...(request.wholePlot ? { wholePlot: true } : {}) });
     return a;
   });
-  return { id: stored.id, response, model, terms: chosen, n: usable.length, result, plots: findingsPlots(result, usable) };
+  return { id: stored.id, response, model, terms: chosen, n: usable.length, result, plots: findingsPlots(result, usable), ...(splitPlotNote ? { splitPlotNote } : {}) };
+}
+
+type FitRequest = AnalysisRequest & { data: DataRow[] };
+
+/**
+ * When the campaign has hard-to-change factors and every run used belongs to a whole plot, fit the
+ * split-plot model (REML with a whole-plot random effect, Kenward–Roger df), so that whole-plot
+ * factors are tested against whole-plot error. When the whole plots cannot support it (e.g. one run
+ * per plot), fall back to least squares and say why.
+ */
+export function fitWithWholePlots(base: FitRequest, factors: Factor[]): { request: FitRequest; result: AnalysisResult; splitPlotNote?: string } {
+  const hard = factors.some((f) => f.hardToChange);
+  const labels = base.data.map((r) => r[WHOLE_PLOT_COLUMN]);
+  const hasPlots = hard && labels.every((l) => l !== undefined && l !== '') && new Set(labels).size >= 2;
+  if (hasPlots) {
+    const request = { ...base, wholePlot: WHOLE_PLOT_COLUMN };
+    try {
+      return { request, result: analyze(request) };
+    } catch (e) {
+      if (!(e instanceof DomainError)) throw e;
+      return { request: base, result: analyze(base), splitPlotNote: `Fitted by least squares, not as a split plot: ${e.message}.` };
+    }
+  }
+  return { request: base, result: analyze(base) };
 }
 
 /** Everything the findings page draws, computed from a fit and the data it used. */
@@ -108,7 +153,39 @@ export function findingsPlots(result: AnalysisResult, rows: DataRow[]) {
       surface = null;
     }
   }
-  return { effects, residuals, normal, contour, interaction, surface, halfNormal: halfNormalOf(result, rows) };
+  return { effects, residuals, normal, contour, interaction, surface, halfNormal: halfNormalOf(result, rows), ...residualsInTime(result, rows) };
+}
+
+/**
+ * Residuals against run order (the order the trials started; campaign data come in that order), and
+ * grouped by whole plot and by rig where the rows say so. Whole plots come from a split-plot fit or
+ * from the rows' whole-plot column.
+ */
+function residualsInTime(result: AnalysisResult, rows: DataRow[]) {
+  const excluded = new Set(result.excludedRows ?? []);
+  const used = rows.filter((_, i) => !excluded.has(i));
+  if (used.length !== result.residuals.length) return { byOrder: null, byWholePlot: null, byRig: null };
+  const byOrder = result.residuals.map((r, i) => ({ x: i + 1, y: r }));
+  const grouped = (key: (row: DataRow, i: number) => string | undefined) => {
+    const keys = used.map(key);
+    if (keys.every((k) => k === undefined)) return null;
+    const groups: { label: string; values: number[] }[] = [];
+    const index = new Map<string, number>();
+    keys.forEach((k, i) => {
+      const label = k ?? 'not recorded';
+      let g = index.get(label);
+      if (g === undefined) {
+        index.set(label, (g = groups.length));
+        groups.push({ label, values: [] });
+      }
+      groups[g]!.values.push(result.residuals[i]!);
+    });
+    return groups;
+  };
+  const plotOf = result.splitPlot?.wholePlotOf;
+  const byWholePlot = grouped((row, i) => plotOf?.[i] ?? (row[WHOLE_PLOT_COLUMN] === undefined ? undefined : String(row[WHOLE_PLOT_COLUMN])));
+  const byRig = grouped((row) => (row[RIG_COLUMN] === undefined ? undefined : String(row[RIG_COLUMN])));
+  return { byOrder, byWholePlot, byRig };
 }
 
 /**
@@ -116,6 +193,8 @@ export function findingsPlots(result: AnalysisResult, rows: DataRow[]) {
  * numeric with exactly two settings in the data, and no power terms.
  */
 function halfNormalOf(result: AnalysisResult, rows: DataRow[]) {
+  // Effects of a split plot have unequal standard errors (two strata): no common half-normal scale.
+  if (result.splitPlot) return null;
   const used = result.factors.filter((f) => result.terms.some((t) => t.split('*').some((p) => p.split('^')[0] === f.name)));
   const twoLevel = used.length > 0 && used.every((f) => f.kind !== 'categorical' && new Set(rows.map((r) => Number(r[f.name]))).size === 2);
   if (!twoLevel || result.terms.some((t) => t.includes('^'))) return null;
@@ -133,7 +212,7 @@ export async function latestAnalysis(campaignId: string, response?: string) {
   const client = await db();
   const a = await client.analysis.findFirst({ where: { campaignId, ...(response ? { response } : {}) }, orderBy: { createdAt: 'desc' } });
   if (!a) return null;
-  const req = parseJson<{ model?: StandardModel; data?: DataRow[] }>(a.requestJson, {});
+  const req = parseJson<{ model?: StandardModel; data?: DataRow[]; splitPlotNote?: string }>(a.requestJson, {});
   return {
     id: a.id,
     response: a.response,
@@ -143,5 +222,6 @@ export async function latestAnalysis(campaignId: string, response?: string) {
     createdAt: a.createdAt.toISOString(),
     result: parseJson<AnalysisResult>(a.resultJson, {} as AnalysisResult),
     plots: req.data ? findingsPlots(parseJson<AnalysisResult>(a.resultJson, {} as AnalysisResult), req.data) : null,
+    ...(req.splitPlotNote ? { splitPlotNote: req.splitPlotNote } : {}),
   };
 }

@@ -19,8 +19,9 @@ export default async function AnalysisPage({ params }: { params: Promise<{ id: s
     <>
       <CampaignNav id={id} current="/analysis" name={campaign.name} isDemo={campaign.isDemo} />
       <p className="muted">
-        Least squares by Householder QR with column pivoting on the logged trials, factors in coded units. Each fit is stored with
-        the data it used. <a href={`/campaigns/${id}/report`}>Printable findings report</a>
+        Least squares by Householder QR with column pivoting on the logged trials, factors in coded units. When the runs share whole
+        plots (hard-to-change factors), the fit is a split plot instead: a whole-plot random effect by restricted maximum likelihood,
+        with Kenward–Roger degrees of freedom. Each fit is stored with the data it used. <a href={`/campaigns/${id}/report`}>Printable findings report</a>
       </p>
       <AnalysisPanel campaignId={id} responses={campaign.responses.map((r) => r.name)} initial={latest as AnalysisViewData | null} />
     </>
