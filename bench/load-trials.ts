@@ -1,14 +1,25 @@
 /**
- * `npm run load -- [baseUrl] [clients] [seconds]`: a bounded logging load on a running Saltus, loopback
- * only. N concurrent clients each log trials through POST /api/v1/campaigns/{id}/trials/log (one
+ * `npm run load -- [baseUrl] [clients] [seconds] [--token <token>]`: a bounded logging load on a running
+ * Saltus, loopback only. The API token (role operator or above) comes from `--token` or the environment
+ * variable SALTUS_TOKEN and is sent as `Authorization: Bearer <token>` on every request. N concurrent clients each log trials through POST /api/v1/campaigns/{id}/trials/log (one
  * idempotency key per entry) against a campaign of its own, for a fixed time; then every
  * acknowledged key is checked to be stored exactly once. Prints throughput and latency percentiles.
  */
 import { randomUUID } from 'node:crypto';
 
-const base = process.argv[2] ?? 'http://127.0.0.1:3000';
-const clients = Math.min(Number(process.argv[3] ?? 50), 200);
-const seconds = Math.min(Number(process.argv[4] ?? 60), 300);
+const args = process.argv.slice(2);
+let token = process.env.SALTUS_TOKEN ?? '';
+const positional: string[] = [];
+for (let i = 0; i < args.length; i++) {
+  const a = args[i]!;
+  if (a === '--token') token = args[++i] ?? '';
+  else if (a.startsWith('--token=')) token = a.slice('--token='.length);
+  else positional.push(a);
+}
+const base = positional[0] ?? 'http://127.0.0.1:3000';
+const clients = Math.max(1, Math.min(Number(positional[1] ?? 50), 200));
+const seconds = Math.max(1, Math.min(Number(positional[2] ?? 60), 300));
+const auth: Record<string, string> = token ? { authorization: `Bearer ${token}` } : {};
 
 const host = new URL(base).hostname;
 if (!['127.0.0.1', 'localhost', '::1', '[::1]'].includes(host)) {
@@ -17,8 +28,14 @@ if (!['127.0.0.1', 'localhost', '::1', '[::1]'].includes(host)) {
 }
 
 async function post(path: string, body: unknown, headers: Record<string, string> = {}) {
-  const res = await fetch(base + path, { method: 'POST', headers: { 'content-type': 'application/json', ...headers }, body: JSON.stringify(body) });
+  const res = await fetch(base + path, { method: 'POST', headers: { 'content-type': 'application/json', ...auth, ...headers }, body: JSON.stringify(body) });
   return { status: res.status, json: (await res.json().catch(() => null)) as Record<string, unknown> | null };
+}
+
+async function get<T>(path: string): Promise<T> {
+  const res = await fetch(base + path, { headers: auth });
+  if (!res.ok) throw new Error(`GET ${path}: HTTP ${res.status} ${(await res.text()).slice(0, 300)}`);
+  return (await res.json()) as T;
 }
 
 async function main() {
@@ -29,10 +46,11 @@ async function main() {
     responses: [{ name: 'apex_height', unit: 'mm', goal: 'maximize' }],
     rigs: [{ name: 'Load rig' }],
   });
+  if (c.status === 401 || c.status === 403) throw new Error(`the server refused the token (HTTP ${c.status}); pass --token <token> or set SALTUS_TOKEN to a planner or admin token`);
   if (c.status !== 201) throw new Error(`could not create the load campaign: ${JSON.stringify(c.json)}`);
   const id = String(c.json!.id);
   await post(`/api/v1/campaigns/${id}/designs`, { method: 'full-factorial', seed: 1 });
-  const runs = (await (await fetch(`${base}/api/v1/campaigns/${id}/runs`)).json()) as { runs: { id: string }[] };
+  const runs = await get<{ runs: { id: string }[] }>(`/api/v1/campaigns/${id}/runs`);
   const runIds = runs.runs.map((r) => r.id);
   const latencies: number[] = [];
   const acknowledged = new Set<string>();
@@ -60,7 +78,7 @@ async function main() {
   const elapsed = (Date.now() - started) / 1000;
   latencies.sort((a, b) => a - b);
   const q = (p: number) => latencies[Math.min(latencies.length - 1, Math.floor(p * latencies.length))]!;
-  const trials = (await (await fetch(`${base}/api/v1/campaigns/${id}/trials`)).json()) as { trials: { idempotencyKey: string | null }[] };
+  const trials = await get<{ trials: { idempotencyKey: string | null }[] }>(`/api/v1/campaigns/${id}/trials`);
   const stored = new Map<string, number>();
   for (const t of trials.trials) if (t.idempotencyKey) stored.set(t.idempotencyKey, (stored.get(t.idempotencyKey) ?? 0) + 1);
   const missing = [...acknowledged].filter((k) => stored.get(k) !== 1).length;

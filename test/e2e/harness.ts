@@ -32,8 +32,10 @@ export interface RunningApp {
   databaseUrl: string;
   /** the server's output so far (stdout and stderr) */
   output(): string;
-  /** stops the server and removes its database; safe to call twice */
+  /** stops the server and removes its database (unless it was given in `databaseFile`); safe to call twice */
   stop(): Promise<void>;
+  /** kill -9 of the server's whole process group, no shutdown at all (a crash); keeps the database */
+  crash(): Promise<void>;
 }
 
 export interface StartOptions {
@@ -43,6 +45,11 @@ export interface StartOptions {
   env?: Record<string, string>;
   /** how long to wait for /api/health (default 60 s) */
   readyTimeoutMs?: number;
+  /**
+   * serve this SQLite file (migrated if needed; kept on stop), e.g. to restart on the database a
+   * crashed server left behind; default a fresh throw-away file
+   */
+  databaseFile?: string;
 }
 
 const running = new Set<ChildProcess>();
@@ -85,7 +92,7 @@ export async function startApp(options: StartOptions = {}): Promise<RunningApp> 
     throw new Error('no production build in .next: run `npx next build` first (npm test does)');
   }
   const dir = mkdtempSync(path.join(os.tmpdir(), 'saltus-e2e-'));
-  const dbFile = path.join(dir, 'e2e.db');
+  const dbFile = options.databaseFile ?? path.join(dir, 'e2e.db');
   const env: NodeJS.ProcessEnv = {
     ...process.env,
     DATABASE_URL: `file:${dbFile}`,
@@ -127,6 +134,14 @@ export async function startApp(options: StartOptions = {}): Promise<RunningApp> 
   const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
 
   let stopped = false;
+  const crash = async () => {
+    if (stopped) return;
+    stopped = true;
+    killGroup(child, 'SIGKILL');
+    await Promise.race([exited, sleep(5000)]);
+    running.delete(child);
+    removeDir();
+  };
   const stop = async () => {
     if (stopped) return;
     stopped = true;
@@ -151,7 +166,7 @@ export async function startApp(options: StartOptions = {}): Promise<RunningApp> 
       const res = await fetch(`${baseUrl}/api/health`, { signal: AbortSignal.timeout(5000) });
       const body = await res.text();
       if (res.ok && (JSON.parse(body) as { status?: string }).status === 'ok') {
-        return { baseUrl, databaseUrl: `file:${dbFile}`, output: () => log, stop };
+        return { baseUrl, databaseUrl: `file:${dbFile}`, output: () => log, stop, crash };
       }
       last = `HTTP ${res.status}: ${body.slice(0, 300)}`;
     } catch (e) {
