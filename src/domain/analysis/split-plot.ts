@@ -10,7 +10,7 @@
  */
 // Patterson & Thompson (1971), Biometrika 58:545-554 (REML); Kenward & Roger (1997), Biometrics 53:983-997
 import { EigenvalueDecomposition, Matrix, inverse } from 'ml-matrix';
-import { invalidInput } from '../errors';
+import { DomainError, invalidInput } from '../errors';
 import { fUpperP, tQuantile } from './distributions';
 import { buildModelFrame, type ModelFrame } from './model-frame';
 import { leastSquares } from './least-squares';
@@ -96,6 +96,19 @@ function weightedOuter(vectors: Float64Array[], weights: ArrayLike<number>, p: n
 }
 
 export function splitPlotAnalysis(request: SplitPlotRequest): SplitPlotResult {
+  try {
+    return fitSplitPlot(request);
+  } catch (e) {
+    // A singular matrix left after the checks below means the whole plots and terms are confounded
+    // in a way the df checks did not see: a 422 naming the whole plots, never a 500.
+    if (e instanceof Error && !(e instanceof DomainError) && /singular/i.test(e.message)) {
+      throw new DomainError('singular_design', `the split-plot fit is singular for the whole plots in column ${request.wholePlot} and these terms; add whole plots or runs, or drop terms`, 'wholePlot');
+    }
+    throw e;
+  }
+}
+
+function fitSplitPlot(request: SplitPlotRequest): SplitPlotResult {
   const column = request.wholePlot;
   if (!request.data.some((r) => r !== null && typeof r === 'object' && r[column] !== undefined && r[column] !== null && r[column] !== '')) {
     throw invalidInput('wholePlot', `no run has a value in column "${column}"; name the column that identifies each run's whole plot`);
@@ -127,7 +140,19 @@ export function splitPlotAnalysis(request: SplitPlotRequest): SplitPlotResult {
   const p = cols.length;
   const model = frame.model;
   const xc = cols.map((c) => frame.x.subarray(c * n, (c + 1) * n));
-  const y = frame.y;
+  // Work with the response divided by its spread (restored at the end), so that very large or very
+  // small responses neither overflow nor underflow.
+  let yMean = 0;
+  for (let i = 0; i < n; i++) yMean += frame.y[i]!;
+  yMean /= n;
+  let ySs = 0;
+  let yMax = 0;
+  for (let i = 0; i < n; i++) {
+    ySs += (frame.y[i]! - yMean) ** 2;
+    yMax = Math.max(yMax, Math.abs(frame.y[i]!));
+  }
+  const scale = ySs > 0 && Number.isFinite(ySs) ? Math.sqrt(ySs / n) : yMax > 0 && Number.isFinite(yMax) ? yMax : 1;
+  const y = frame.y.map((v) => v / scale);
 
   // Columns constant within every whole plot are whole-plot columns; their rank in the g plot means
   // fixes the whole-plot error df, the rest is subplot error.
@@ -256,6 +281,9 @@ export function splitPlotAnalysis(request: SplitPlotRequest): SplitPlotResult {
   const atZero = profile(0);
   if (atZero.ll >= best.ll) { gamma = 0; best = atZero; }
   const sigma2 = best.s2;
+  if (!(sigma2 > 1e-20)) {
+    throw invalidInput('response', `${request.response} has no variation left around the model within the whole plots (an exact fit), so there is no error to test the terms against; check the response column or fit fewer terms`);
+  }
   const sigma2wp = gamma * sigma2;
 
   // Kenward–Roger with V = σ²_wp ZZᵀ + σ² I, V_1 = ZZᵀ, V_2 = I, all from per-plot sums:
@@ -320,6 +348,9 @@ export function splitPlotAnalysis(request: SplitPlotRequest): SplitPlotResult {
     const bL = L.transpose().mmul(best.beta);
     const Fraw = bL.transpose().mmul(inverse(L.transpose().mmul(PhiA).mmul(L))).mmul(bL).get(0, 0) / l;
     if (A2 <= 1e-14 * Math.max(1, Math.abs(A1))) return { m: Infinity, f: Fraw }; // variance components without influence: normal reference
+    // One numerator df: A1 = A2 and the formulas below reduce exactly to λ = 1, m = 2/A2; taken in that
+    // form, since λ = m/(E(m − 2)) is 0·∞ when m is near 2 (two whole-plot error df).
+    if (l === 1) return { m: 2 / A2, f: Fraw };
     const B = (A1 + 6 * A2) / (2 * l);
     const gg = ((l + 1) * A1 - (l + 4) * A2) / ((l + 2) * A2);
     const den = 3 * l + 2 * (1 - gg);
@@ -331,7 +362,8 @@ export function splitPlotAnalysis(request: SplitPlotRequest): SplitPlotResult {
     const rho = Vstar / (2 * Estar * Estar);
     const m = 4 + (l + 2) / (l * rho - 1);
     const lambda = m / (Estar * (m - 2));
-    return { m, f: lambda * Fraw };
+    // Near m = 2 the scale is unstable; λ = 1 is its value in balanced designs (exact F).
+    return { m, f: (Number.isFinite(lambda) && lambda > 0 ? lambda : 1) * Fraw };
   };
 
   const coefficients = cols.map((col, k) => {
@@ -345,11 +377,11 @@ export function splitPlotAnalysis(request: SplitPlotRequest): SplitPlotResult {
     return {
       term: model.labels[col]!,
       modelTerm: model.terms[model.termOfColumn[col]!]!.label,
-      estimate: est,
-      stdError: se,
+      estimate: est * scale,
+      stdError: se * scale,
       statistic: tv,
       p: fUpperP(tv * tv, 1, m),
-      ci95: [est - tq * se, est + tq * se] as [number, number],
+      ci95: [(est - tq * se) * scale, (est + tq * se) * scale] as [number, number],
       df: m,
     };
   });
@@ -365,24 +397,28 @@ export function splitPlotAnalysis(request: SplitPlotRequest): SplitPlotResult {
     tests.push({ source: term.label, df: positions.length, denominatorDf: m, f, p: fUpperP(f, positions.length, m), stratum });
   });
   const fitted = new Float64Array(n);
-  for (let i = 0; i < n; i++) fitted[i] = y[i]! - best.r[i]!;
+  const residuals = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    fitted[i] = (y[i]! - best.r[i]!) * scale;
+    residuals[i] = best.r[i]! * scale;
+  }
   const aliasedCols = new Set(cols);
   return {
     n,
     wholePlots: g,
-    wholePlotVariance: sigma2wp,
-    residualVariance: sigma2,
+    wholePlotVariance: sigma2wp * scale * scale,
+    residualVariance: sigma2 * scale * scale,
     coefficients,
     tests,
-    restrictedLogLikelihood: best.ll,
+    restrictedLogLikelihood: best.ll - (n - p) * Math.log(scale),
     wholePlotErrorDf,
     subplotErrorDf,
     // BLUP of each plot's effect: σ²_wp 1ᵀV_w⁻¹ r_w = c_w Σ r_i
-    wholePlotEffects: plotIds.map((label, w) => ({ label, runs: sizes[w]!, effect: cw[w]! * best.R[w]! })),
+    wholePlotEffects: plotIds.map((label, w) => ({ label, runs: sizes[w]!, effect: cw[w]! * best.R[w]! * scale })),
     wholePlotOf: labels,
     fitted,
-    residuals: best.r,
-    covariance: PhiA.to2DArray(),
+    residuals,
+    covariance: PhiA.to2DArray().map((row) => row.map((v) => v * scale * scale)),
     aliased: Array.from({ length: frame.p }, (_, j) => j).filter((j) => !aliasedCols.has(j)).map((j) => model.labels[j]!),
     frame,
   };

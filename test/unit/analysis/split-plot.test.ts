@@ -30,11 +30,11 @@ describe('split-plot REML with Kenward–Roger degrees of freedom (Kenward & Rog
     expect(tA.denominatorDf).toBeCloseTo(6, 6);
     expect(tB.denominatorDf).toBeCloseTo(14, 6);
     expect(tAB.denominatorDf).toBeCloseTo(14, 6);
-    // F agrees to the precision of the REML optimum (golden section in log γ: about 1e-7 relative).
+    // F agrees to the precision of the REML optimum (score equation solved to rounding).
     const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
-    expect(rel(tA.f, wholePlotAnova.anova.find((r) => r.source === 'A')!.f!)).toBeLessThan(1e-6);
-    expect(rel(tB.f, subplotAnova.anova.find((r) => r.source === 'B')!.f!)).toBeLessThan(1e-6);
-    expect(rel(tAB.f, subplotAnova.anova.find((r) => r.source === 'A*B')!.f!)).toBeLessThan(1e-6);
+    expect(rel(tA.f, wholePlotAnova.anova.find((r) => r.source === 'A')!.f!)).toBeLessThan(1e-9);
+    expect(rel(tB.f, subplotAnova.anova.find((r) => r.source === 'B')!.f!)).toBeLessThan(1e-9);
+    expect(rel(tAB.f, subplotAnova.anova.find((r) => r.source === 'A*B')!.f!)).toBeLessThan(1e-9);
   });
 
   it('estimates the variance components by REML (balanced: from the two mean squares)', () => {
@@ -69,5 +69,29 @@ describe('split-plot REML with Kenward–Roger degrees of freedom (Kenward & Rog
     expect(tB.denominatorDf).toBeGreaterThan(10);
     expect(tB.denominatorDf).toBeLessThan(16);
     for (const t of unbalanced.tests) expect(t.p).toBeGreaterThanOrEqual(0);
+  });
+
+  it('gives the same tests whatever the response scale, and keeps two whole-plot df stable', () => {
+    // 4 whole plots, one whole-plot factor: 4 − 2 = 2 whole-plot error df, where the general
+    // Kenward–Roger scale factor is 0·∞; single-df tests use its exact form (λ = 1, m = 2/A2).
+    const small = Array.from({ length: 12 }, (_, i) => ({ wp: `p${Math.floor(i / 3)}`, A: Math.floor(i / 3) % 2 ? 1 : -1, B: (i % 3) - 1, y: 1 + 0.1 * i + 0.05 * Math.sin(i * 3.1) }));
+    const ref = splitPlotAnalysis({ data: small, response: 'y', terms: ['A', 'B'], wholePlot: 'wp' });
+    expect(ref.tests[0]!.denominatorDf).toBeCloseTo(2, 8);
+    for (const factor of [1e-300, 1e-8, 1e8, 1e300]) {
+      const r = splitPlotAnalysis({ data: small.map((d) => ({ ...d, y: d.y * factor })), response: 'y', terms: ['A', 'B'], wholePlot: 'wp' });
+      r.tests.forEach((t, j) => {
+        expect(t.f).toBeCloseTo(ref.tests[j]!.f, 8);
+        expect(t.p).toBeCloseTo(ref.tests[j]!.p, 10);
+        expect(t.denominatorDf).toBeCloseTo(ref.tests[j]!.denominatorDf, 8);
+      });
+      r.coefficients.forEach((c, j) => expect(c.estimate / factor).toBeCloseTo(ref.coefficients[j]!.estimate, 10));
+    }
+  });
+
+  it('refuses an exact fit (no error to test against), naming the response', () => {
+    const exact = data.map((d) => ({ ...d, y: 3 + d.A - d.B }));
+    expect(() => splitPlotAnalysis({ data: exact, response: 'y', terms: ['A', 'B'], wholePlot: 'bed' })).toThrow(expect.objectContaining({ field: 'response' }));
+    const constant = data.map((d) => ({ ...d, y: 7 }));
+    expect(() => splitPlotAnalysis({ data: constant, response: 'y', terms: ['A', 'B'], wholePlot: 'bed' })).toThrow(/exact fit/);
   });
 });
