@@ -6,6 +6,7 @@
  */
 // Businger & Golub (1965), Numer. Math. 7:269-276 (Householder QR with column pivoting)
 // Björck (1967), BIT 7:257-278 (iterative refinement of linear least squares via the augmented system)
+// Björck (1987), Linear Algebra Appl. 88/89:31-48 (corrected semi-normal equations)
 import { dot2 } from './compensated';
 import { chunkedTriangle } from './tall-qr';
 
@@ -46,6 +47,11 @@ export interface LeastSquaresFit {
   residualSumOfSquares: number;
   /** |R_00| / |R_rr| on scaled columns: a lower bound of the scaled condition number. */
   conditionEstimate: number;
+  /**
+   * How R was found: 'row-chunks' (the triangle of [X y] chunk by chunk, for large well-conditioned
+   * problems that need no refinement) or 'whole-matrix' (reflectors of X kept, refinement possible).
+   */
+  factorisation?: 'row-chunks' | 'whole-matrix';
 }
 
 /** A Householder QR factorisation of a column-scaled, column-pivoted matrix (column-major). */
@@ -324,12 +330,15 @@ interface StartingSolution {
   qr: PivotedQr;
   /** Solution in scaled, pivoted coordinates (length rank). */
   c: Float64Array;
+  /** |R_00| / |R_rr| (see LeastSquaresFit.conditionEstimate). */
   conditionEstimate: number;
+  /** Refinement is called for: the estimate above exceeds 1e4, or (for n·p above 200,000) R's 1-norm condition number does. */
+  illConditioned: boolean;
+  factorisation: 'row-chunks' | 'whole-matrix';
 }
 
 /** Refinement steps for the coefficients and whether the covariance is refined, as the options and conditioning ask. */
-function refinementPlan(options: LeastSquaresOptions, n: number, p: number, conditionEstimate: number): { steps: number; refineCovariance: boolean; refine: boolean } {
-  const illConditioned = conditionEstimate > ILL_CONDITIONED;
+function refinementPlan(options: LeastSquaresOptions, n: number, p: number, illConditioned: boolean): { steps: number; refineCovariance: boolean; refine: boolean } {
   // Refinement: always when ill-conditioned; once for well-conditioned problems of modest size,
   // where it costs little; not for large well-conditioned ones, where QR alone is accurate to
   // about n·κ·ε and the extended-precision passes would dominate the time.
@@ -339,14 +348,41 @@ function refinementPlan(options: LeastSquaresOptions, n: number, p: number, cond
   return { steps, refineCovariance, refine: steps > 0 || refineCovariance };
 }
 
-function conditionOf(qr: PivotedQr): number {
+/**
+ * How well X is conditioned, from its (scaled) R. The ratio of R's extreme diagonal entries is a
+ * lower bound that can miss by orders of magnitude (polynomial columns); large problems, which are
+ * not refined by default, also take the 1-norm condition number ‖R‖₁‖R⁻¹‖₁ (R⁻¹ column by column,
+ * rank³ operations) so that only truly well-conditioned ones go without refinement.
+ */
+function conditionOf(qr: PivotedQr, n: number, p: number): { conditionEstimate: number; illConditioned: boolean } {
+  const rank = qr.rank;
+  if (rank === 0) return { conditionEstimate: Infinity, illConditioned: true };
   let dmax = 0;
   let dmin = Infinity;
-  for (let k = 0; k < qr.rank; k++) {
+  for (let k = 0; k < rank; k++) {
     dmax = Math.max(dmax, Math.abs(qr.diag[k]!));
     dmin = Math.min(dmin, Math.abs(qr.diag[k]!));
   }
-  return qr.rank > 0 ? dmax / dmin : Infinity;
+  const conditionEstimate = dmax / dmin;
+  if (conditionEstimate > ILL_CONDITIONED) return { conditionEstimate, illConditioned: true };
+  if (n * p <= CHUNKED_MIN_SIZE) return { conditionEstimate, illConditioned: false };
+  let normR = 0;
+  for (let j = 0; j < rank; j++) {
+    let s = 0;
+    for (let i = 0; i <= j; i++) s += Math.abs(rAt(qr, i, j));
+    normR = Math.max(normR, s);
+  }
+  let normInv = 0;
+  const e = new Float64Array(rank);
+  for (let j = 0; j < rank; j++) {
+    e.fill(0);
+    e[j] = 1;
+    solveR(qr, e);
+    let s = 0;
+    for (let i = 0; i <= j; i++) s += Math.abs(e[i]!);
+    normInv = Math.max(normInv, s);
+  }
+  return { conditionEstimate, illConditioned: !(normR * normInv <= ILL_CONDITIONED) };
 }
 
 function chunkedEligible(n: number, p: number, options: LeastSquaresOptions): boolean {
@@ -362,7 +398,7 @@ function directStart(x: Float64Array, yv: Float64Array, n: number, p: number, op
   applyQt(qr, qty);
   const c = qty.slice(0, qr.rank);
   solveR(qr, c);
-  return { qr, c, conditionEstimate: conditionOf(qr) };
+  return { qr, c, ...conditionOf(qr, n, p), factorisation: 'whole-matrix' };
 }
 
 /**
@@ -380,7 +416,42 @@ function chunkedStart(x: Float64Array, yv: Float64Array, n: number, p: number, o
   applyQt(qr, z);
   const c = z.slice(0, qr.rank);
   solveR(qr, c);
-  return { qr, c, conditionEstimate: conditionOf(qr) };
+  return { qr, c, ...conditionOf(qr, n, p), factorisation: 'row-chunks' };
+}
+
+/** r = y − Z c with Z the scaled basis columns of x, column by column within blocks of rows (r stays in cache). */
+function residualsInto(r: Float64Array, x: Float64Array, yv: Float64Array, qr: PivotedQr, c: Float64Array): void {
+  const { rank, pivot, scale } = qr;
+  const n = yv.length;
+  r.set(yv);
+  const ck = new Float64Array(rank);
+  for (let k = 0; k < rank; k++) ck[k] = c[k]! / scale[pivot[k]!]!;
+  for (let i0 = 0; i0 < n; i0 += RESIDUAL_BLOCK) {
+    const i1 = Math.min(n, i0 + RESIDUAL_BLOCK);
+    for (let k = 0; k < rank; k++) {
+      const off = pivot[k]! * n;
+      const b = ck[k]!;
+      for (let i = i0; i < i1; i++) r[i] -= x[off + i]! * b;
+    }
+  }
+}
+
+/** Zᵀ r with Z the scaled basis columns of x (length rank, pivoted order). */
+function basisTimes(x: Float64Array, r: Float64Array, qr: PivotedQr): Float64Array {
+  const { rank, pivot, scale } = qr;
+  const n = r.length;
+  const g = new Float64Array(rank);
+  for (let i0 = 0; i0 < n; i0 += RESIDUAL_BLOCK) {
+    const i1 = Math.min(n, i0 + RESIDUAL_BLOCK);
+    for (let k = 0; k < rank; k++) {
+      const off = pivot[k]! * n;
+      let s = 0;
+      for (let i = i0; i < i1; i++) s += x[off + i]! * r[i]!;
+      g[k] += s;
+    }
+  }
+  for (let k = 0; k < rank; k++) g[k] /= scale[pivot[k]!]!;
+  return g;
 }
 
 /**
@@ -392,12 +463,11 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
   // Large problems: the triangle of [X y] by chunks, then pivoting and rank detection on it; used
   // unless the conditioning calls for refinement, which needs the reflectors of X itself.
   let start = chunkedEligible(n, p, options) ? chunkedStart(x, yv, n, p, options) : null;
-  if (start && refinementPlan(options, n, p, start.conditionEstimate).refine) start = null;
+  if (start && refinementPlan(options, n, p, start.illConditioned).refine) start = null;
   start ??= directStart(x, yv, n, p, options);
-  const { qr, c, conditionEstimate } = start;
+  const { qr, c, conditionEstimate, illConditioned } = start;
   const { rank, pivot, scale } = qr;
-  const { steps, refineCovariance: doRefine } = refinementPlan(options, n, p, conditionEstimate);
-  const illConditioned = conditionEstimate > ILL_CONDITIONED;
+  const { steps, refineCovariance: doRefine } = refinementPlan(options, n, p, illConditioned);
 
   const r = new Float64Array(n);
   let z: Float64Array | null = null;
@@ -410,17 +480,16 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
     for (let i = 0; i < n; i++) r[i] = residualRow(z, zLow, n, rank, i, c, yv[i]!, 0);
     for (let s = 0; s < steps; s++) refineAugmented(qr, z, zLow, r, c, yv, null);
   } else {
-    // r = y − Σ_k x_{pivot k} · c_k / scale, column by column within blocks of rows (r stays in cache).
-    r.set(yv);
-    const ck = new Float64Array(rank);
-    for (let k = 0; k < rank; k++) ck[k] = c[k]! / scale[pivot[k]!]!;
-    for (let i0 = 0; i0 < n; i0 += RESIDUAL_BLOCK) {
-      const i1 = Math.min(n, i0 + RESIDUAL_BLOCK);
-      for (let k = 0; k < rank; k++) {
-        const off = pivot[k]! * n;
-        const b = ck[k]!;
-        for (let i = i0; i < i1; i++) r[i] -= x[off + i]! * b;
-      }
+    residualsInto(r, x, yv, qr, c);
+    if (start.factorisation === 'row-chunks' && options.refinementSteps === undefined) {
+      // One corrected semi-normal step in working precision, c += R⁻¹R⁻ᵀ Zᵀr: the triangle alone
+      // leaves small coefficients of polynomial-like columns a few digits short (R is the same,
+      // but the reflectors that refinement would use are not kept); this step restores them.
+      const g = basisTimes(x, r, qr);
+      solveRt(qr, g);
+      solveR(qr, g);
+      for (let k = 0; k < rank; k++) c[k] += g[k]!;
+      residualsInto(r, x, yv, qr, c);
     }
   }
 
@@ -484,5 +553,6 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
     residuals: r,
     residualSumOfSquares: rss + comp,
     conditionEstimate,
+    factorisation: start.factorisation,
   };
 }
