@@ -26,7 +26,7 @@ const nextConfig = {
   // does not repeat it.
   typescript: { ignoreBuildErrors: true },
   // Native and worker-thread packages stay outside the server bundle.
-  serverExternalPackages: ['better-sqlite3', '@prisma/adapter-better-sqlite3', 'pg', 'piscina'],
+  serverExternalPackages: ['better-sqlite3', '@prisma/adapter-better-sqlite3', 'pg', 'piscina', 'pg-boss', 'tsx'],
   async headers() {
     return [{ source: '/:path*', headers: securityHeaders }];
   },

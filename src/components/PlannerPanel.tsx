@@ -1,9 +1,10 @@
 'use client';
 /** Compare two or three candidate designs side by side (previews, nothing stored) and commit one. */
-import { useRouter } from 'next/navigation';
+import { usePathname, useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
+import { JobProgress, useJob, type JobState } from './JobProgress';
 import { CorrelationMap, FdsChart } from './plan-charts';
 
 const METHODS = [
@@ -29,6 +30,8 @@ export interface CandidateSpec {
   wholePlots: string;
   criterion: string;
   seed: string;
+  /** Optimal designs: random starts of the search (empty: the engine's default). */
+  starts?: string;
 }
 
 interface Diagnostics {
@@ -46,6 +49,7 @@ interface Diagnostics {
   fractionOfDesignSpace: { fraction: number[]; scaledPredictionVariance: number[] };
   power?: { term: string; power: number }[];
   notes: string[];
+  optimal?: { startsCompleted: number; stopped: boolean };
 }
 
 interface Preview {
@@ -60,23 +64,45 @@ export function candidateBody(c: CandidateSpec): Record<string, unknown> {
   const body: Record<string, unknown> = { method: c.method };
   if (c.model) body.model = c.model;
   const num = (k: keyof CandidateSpec, name: string) => {
-    if (c[k].trim()) body[name] = Number(c[k]);
+    if ((c[k] ?? '').trim()) body[name] = Number(c[k]);
   };
   num('runs', 'runs');
   num('centerPoints', 'centerPoints');
   num('wholePlots', 'wholePlots');
   num('seed', 'seed');
+  if (c.method === 'optimal' && c.starts?.trim()) body.starts = Number(c.starts);
   if (c.criterion) body.criterion = c.criterion;
   return body;
 }
 
 const pct = (v: number) => `${(v * 100).toFixed(1)}%`;
 
-export function PlannerPanel({ campaignId, defaults, hasRuns }: { campaignId: string; defaults: CandidateSpec[]; hasRuns: boolean }) {
+/** One candidate's design search, run as a job: polled until it ends, then handed to the panel. */
+function CandidateSearch({ id, name, onEnd }: { id: string; name: string; onEnd: (job: JobState<Preview>) => void }) {
+  const { job, error } = useJob<Preview>(id, onEnd);
+  return <JobProgress job={job} error={error} label={`Candidate ${name} search`} />;
+}
+
+export function PlannerPanel({
+  campaignId,
+  defaults,
+  hasRuns,
+  initialJobs = [],
+}: {
+  campaignId: string;
+  defaults: CandidateSpec[];
+  hasRuns: boolean;
+  /** Job ids of candidate searches (from the page's URL), by candidate position; '' for none. */
+  initialJobs?: string[];
+}) {
   const router = useRouter();
+  const pathname = usePathname();
   const [specs, setSpecs] = useState<CandidateSpec[]>(defaults);
   const [previews, setPreviews] = useState<(Preview | null)[]>([]);
   const [errors, setErrors] = useState<(ApiError | null)[]>([]);
+  const [jobs, setJobs] = useState<string[]>(initialJobs);
+  const [running, setRunning] = useState<Set<string>>(new Set(initialJobs.filter(Boolean)));
+  const [fromJob, setFromJob] = useState<(string | null)[]>([]);
   const [busy, setBusy] = useState(false);
   const [done, setDone] = useState<string | null>(null);
   const [commitError, setCommitError] = useState<ApiError | null>(null);
@@ -89,22 +115,65 @@ export function PlannerPanel({ campaignId, defaults, hasRuns }: { campaignId: st
     setDone(null);
     const out: (Preview | null)[] = [];
     const errs: (ApiError | null)[] = [];
-    // One at a time: each preview runs the design engine on the server.
+    const ids: string[] = [];
+    // One at a time: a construction is previewed at once; an optimal-design search becomes a job
+    // with progress and cancel, whose result arrives when it ends.
     for (const spec of specs) {
+      if (spec.method === 'optimal') {
+        const res = await postJson<{ id: string }>('/api/v1/jobs', { kind: 'design-search', campaignId, input: candidateBody(spec) });
+        out.push(null);
+        // The job's body wraps the candidate in "input"; the form's fields are named without it.
+        errs.push(res.ok ? null : { ...res.error, field: res.error.field?.replace(/^input\./, '') ?? null });
+        ids.push(res.ok ? res.data.id : '');
+        continue;
+      }
       const res = await postJson<Preview>(`/api/v1/campaigns/${campaignId}/designs?preview=1`, candidateBody(spec));
       out.push(res.ok ? res.data : null);
       errs.push(res.ok ? null : res.error);
+      ids.push('');
     }
     setPreviews(out);
     setErrors(errs);
+    setJobs(ids);
+    setFromJob([]);
+    setRunning(new Set(ids.filter(Boolean)));
+    // The job ids go into the URL: leaving the page and coming back finds the searches again.
+    router.replace(ids.some(Boolean) ? `${pathname}?jobs=${ids.join(',')}` : pathname, { scroll: false });
     setBusy(false);
+  }
+
+  function searchEnded(i: number, job: JobState<Preview>) {
+    setRunning((r) => {
+      const next = new Set(r);
+      next.delete(job.id);
+      return next;
+    });
+    if (job.result) {
+      const result = job.result;
+      setPreviews((p) => {
+        const next = p.slice();
+        while (next.length <= i) next.push(null);
+        next[i] = result;
+        return next;
+      });
+      setFromJob((f) => {
+        const next = f.slice();
+        while (next.length <= i) next.push(null);
+        next[i] = job.id;
+        return next;
+      });
+    }
   }
 
   async function commit(i: number) {
     setCommitError(null);
     setDone(null);
     setBusy(true);
-    const res = await postJson<{ version: number; runs: number; withdrawn: number }>(`/api/v1/campaigns/${campaignId}/designs`, candidateBody(specs[i]!));
+    // A searched candidate is committed as found (no second search); a construction is built again.
+    const job = fromJob[i];
+    const res = job
+      ? await postJson<{ version: number; runs: number; withdrawn: number }>(`/api/v1/campaigns/${campaignId}/designs?fromJob=${encodeURIComponent(job)}`, {})
+      : await postJson<{ version: number; runs: number; withdrawn: number }>(`/api/v1/campaigns/${campaignId}/designs`, candidateBody(specs[i]!));
     setBusy(false);
     if (!res.ok) return setCommitError(res.error);
     setDone(`Candidate ${NAMES[i]} committed as design version ${res.data.version}: ${res.data.runs} runs${res.data.withdrawn ? `; ${res.data.withdrawn} untried runs of the earlier design withdrawn` : ''}.`);
@@ -114,6 +183,7 @@ export function PlannerPanel({ campaignId, defaults, hasRuns }: { campaignId: st
   const shown = previews.map((p, i) => (p ? { p, i } : null)).filter((x): x is { p: Preview; i: number } => x !== null);
   const rows: [string, (d: Diagnostics, p: Preview) => string][] = [
     ['Runs', (d) => String(d.runs)],
+    ['Search', (d) => (d.optimal ? `${d.optimal.startsCompleted} random starts${d.optimal.stopped ? ' (cancelled: best design so far)' : ''}` : '—')],
     ['Whole plots', (_d, p) => String(new Set(p.runs.map((r) => r.wholePlot).filter((w) => w !== undefined && w !== null)).size || '—')],
     ['Parameters', (d) => String(d.parameters)],
     ['Error df', (d) => String(d.errorDegreesOfFreedom)],
@@ -183,6 +253,15 @@ export function PlannerPanel({ campaignId, defaults, hasRuns }: { campaignId: st
                     <input id={`c${n}-seed`} inputMode="numeric" value={c.seed} onChange={(e) => update(i, { seed: e.target.value })} aria-invalid={err?.field === 'seed' || undefined} />
                   </div>
                 </div>
+                {c.method === 'optimal' ? (
+                  <div className="row">
+                    <div>
+                      <label htmlFor={`c${n}-starts`}>Candidate {n} random starts</label>
+                      <input id={`c${n}-starts`} inputMode="numeric" placeholder="20" value={c.starts ?? ''} onChange={(e) => update(i, { starts: e.target.value })} aria-invalid={err?.field === 'input.starts' || err?.field === 'starts' || undefined} />
+                    </div>
+                  </div>
+                ) : null}
+                {jobs[i] ? <CandidateSearch key={jobs[i]} id={jobs[i]!} name={n} onEnd={(job) => searchEnded(i, job)} /> : null}
                 <ErrorBox error={err ?? null} />
                 {specs.length > 2 ? (
                   <button type="button" className="btn secondary" onClick={() => { setSpecs((s) => s.filter((_, k) => k !== i)); setPreviews([]); setErrors([]); }}>
@@ -195,8 +274,8 @@ export function PlannerPanel({ campaignId, defaults, hasRuns }: { campaignId: st
         </div>
         <div className="row" style={{ marginTop: '0.6rem' }}>
           <div style={{ flex: '0 0 auto' }}>
-            <button type="submit" className="btn" disabled={busy}>
-              {busy ? 'Computing…' : 'Compare candidates'}
+            <button type="submit" className="btn" disabled={busy || running.size > 0}>
+              {busy ? 'Computing…' : running.size > 0 ? 'Searching…' : 'Compare candidates'}
             </button>
           </div>
           {specs.length < 3 ? (

@@ -3,11 +3,12 @@
  * Next trials from the Gaussian-process surrogate: a batch with the reason for each, the surrogate's
  * mean ± 2 sd along every factor, and accept some or all as new runs.
  */
-import { useRouter } from 'next/navigation';
+import { usePathname, useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { BandPlot } from './charts';
 import { ErrorBox } from './FieldError';
+import { JobProgress, useJob, type JobState } from './JobProgress';
 
 interface BatchSuggestion {
   id: string;
@@ -30,8 +31,27 @@ interface Batch {
 
 const p4 = (v: number) => Number(v.toPrecision(4));
 
-export function SurrogatePanel({ campaignId, responses, units }: { campaignId: string; responses: { name: string; unit?: string }[]; units: Record<string, string> }) {
+/** The batch's computation, run as a job: polled until it ends. */
+function BatchJob({ id, onEnd }: { id: string; onEnd: (job: JobState<Batch>) => void }) {
+  const { job, error } = useJob<Batch>(id, onEnd);
+  return <JobProgress job={job} error={error} label="Surrogate batch" />;
+}
+
+export function SurrogatePanel({
+  campaignId,
+  responses,
+  units,
+  initialJob = null,
+}: {
+  campaignId: string;
+  responses: { name: string; unit?: string }[];
+  units: Record<string, string>;
+  /** A batch job from the page's URL (leaving the page and coming back finds it again). */
+  initialJob?: string | null;
+}) {
   const router = useRouter();
+  const pathname = usePathname();
+  const [jobId, setJobId] = useState<string | null>(initialJob);
   const [response, setResponse] = useState(responses[0]?.name ?? '');
   const [strategy, setStrategy] = useState('improve');
   const [count, setCount] = useState('4');
@@ -47,16 +67,32 @@ export function SurrogatePanel({ campaignId, responses, units }: { campaignId: s
     setError(null);
     setMessage(null);
     setBusy(true);
-    const res = await postJson<Batch>(`/api/v1/campaigns/${campaignId}/suggestions`, {
-      response,
-      strategy,
-      count: Number(count),
-      feasibilityThreshold: threshold.trim() ? Number(threshold) : undefined,
+    setBatch(null);
+    // The fit and the batch run as a job (progress, cancel); the stored proposals arrive as its result.
+    const res = await postJson<{ id: string }>('/api/v1/jobs', {
+      kind: 'suggestions',
+      campaignId,
+      input: {
+        response,
+        strategy,
+        count: Number(count),
+        feasibilityThreshold: threshold.trim() ? Number(threshold) : undefined,
+      },
     });
+    if (!res.ok) {
+      setBusy(false);
+      return setError({ ...res.error, field: res.error.field?.replace(/^input\./, '') ?? null });
+    }
+    setJobId(res.data.id);
+    router.replace(`${pathname}?job=${encodeURIComponent(res.data.id)}`, { scroll: false });
+  }
+
+  function batchEnded(job: JobState<Batch>) {
     setBusy(false);
-    if (!res.ok) return setError(res.error);
-    setBatch(res.data);
-    setChosen(new Set(res.data.suggestions.map((s) => s.id)));
+    if (job.status === 'done' && job.result) {
+      setBatch(job.result);
+      setChosen(new Set(job.result.suggestions.map((s) => s.id)));
+    }
   }
 
   async function accept() {
@@ -117,6 +153,7 @@ export function SurrogatePanel({ campaignId, responses, units }: { campaignId: s
           </button>
         </div>
       </form>
+      {jobId ? <BatchJob key={jobId} id={jobId} onEnd={batchEnded} /> : null}
       <ErrorBox error={error} />
       {message ? (
         <div className="ok" role="status">

@@ -14,11 +14,12 @@ import {
 } from '@/server/api/schemas/campaign';
 import { fitCampaign } from '@/server/repos/analyses';
 import { createCampaign, getCampaign, listCampaigns } from '@/server/repos/campaigns';
-import { addRun, commitDesign, listRuns, previewDesign } from '@/server/repos/runs';
+import { addRun, commitDesign, commitJobDesign, listRuns, previewDesign } from '@/server/repos/runs';
 import { listSlots, placeRuns } from '@/server/repos/schedule';
 import { acceptSuggestion, proposeNextTrial, proposeSurrogateBatch } from '@/server/repos/suggestions';
 import { amendTrial, finishTrial, startTrial, trialsOf } from '@/server/repos/trials';
 import { IDEMPOTENCY_KEY, jsonResponse, readJson } from './http';
+import { jobIdSchema } from './jobs';
 import { parseWith } from './validation';
 
 export const listCampaignsHandler = async () => ({ campaigns: await listCampaigns() });
@@ -31,6 +32,8 @@ export const createCampaignHandler = async (req: Request) => {
 export const getCampaignHandler = async (_req: Request, p: Record<string, string>) => getCampaign(p.id!);
 
 export const designHandler = async (req: Request, p: Record<string, string>) => {
+  const fromJob = new URL(req.url).searchParams.get('fromJob');
+  if (fromJob !== null) return jsonResponse(await commitJobDesign(p.id!, parseWith(jobIdSchema, fromJob, 'fromJob')), 201);
   const input = parseWith(campaignDesignSchema, await readJson(req));
   if (new URL(req.url).searchParams.get('preview') === '1') return previewDesign(p.id!, input);
   return jsonResponse(await commitDesign(p.id!, input), 201);

@@ -10,7 +10,8 @@ import { getJob, listJobs, type JobView } from '@/server/repos/jobs';
 import { jsonResponse, readJson } from './http';
 import { parseWith } from './validation';
 
-const id = z.string().regex(/^[A-Za-z0-9_-]{1,64}$/, 'an id has only letters, digits, _ and - (at most 64)');
+export const jobIdSchema = z.string().regex(/^[A-Za-z0-9_-]{1,64}$/, 'an id has only letters, digits, _ and - (at most 64)');
+const id = jobIdSchema;
 
 export const jobCreateSchema = z.object({
   kind: z.enum(JOB_KINDS, { error: `kind must be one of: ${JOB_KINDS.join(', ')}` }),

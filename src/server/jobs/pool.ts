@@ -16,7 +16,7 @@ import { fromTaskError, type TaskKind, type TaskOutcome } from './tasks';
  */
 export function workerFile(env: Record<string, string | undefined> = process.env): string {
   if (env.SALTUS_JOB_WORKER) return path.resolve(env.SALTUS_JOB_WORKER);
-  return path.join(path.resolve(env.SALTUS_ROOT ?? process.cwd()), 'src', 'server', 'jobs', 'worker.mjs');
+  return path.join(path.resolve(/*turbopackIgnore: true*/ env.SALTUS_ROOT ?? process.cwd()), 'src', 'server', 'jobs', 'worker.mjs');
 }
 
 /** Threads: SALTUS_JOB_THREADS, else one fewer than the cores (at least one) so requests keep a core. */

@@ -107,7 +107,10 @@ export class JobRunner {
 
   /** Recover after a restart and begin taking jobs. Safe to call more than once. */
   start(): Promise<void> {
-    this.started ??= this.doStart();
+    this.started ??= this.doStart().catch((e: unknown) => {
+      this.started = null;
+      throw e;
+    });
     return this.started;
   }
 

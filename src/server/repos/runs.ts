@@ -46,6 +46,33 @@ export async function commitDesign(campaignId: string, input: CampaignDesignInpu
   const campaign = await getCampaign(campaignId);
   const spec = campaignDesignSpec(domainFactors(campaign), input);
   const result = await designOffThread(spec);
+  return storeDesign(campaignId, spec, result, actor);
+}
+
+/**
+ * Commit the design a finished design-search job of this campaign found (done, or cancelled with its
+ * best design so far), as it was found: the search is not run again.
+ */
+export async function commitJobDesign(campaignId: string, jobId: string, actor = 'local') {
+  const campaign = await getCampaign(campaignId);
+  const client = await db();
+  const job = await client.job.findUnique({ where: { id: jobId } });
+  if (!job || job.campaignId !== campaignId || job.kind !== 'design-search') {
+    throw new DomainError('not_found', 'no design search of this campaign has this id', 'fromJob');
+  }
+  if (!job.resultJson) {
+    throw new DomainError('conflict', `the search has no design to commit (it is ${job.status}); wait for it to finish or start it again`, 'fromJob');
+  }
+  const envelope = parseJson<{ input?: DesignSpec }>(job.inputJson, {});
+  const spec = envelope.input;
+  const factors = domainFactors(campaign);
+  if (!spec || JSON.stringify(spec.factors) !== JSON.stringify(factors)) {
+    throw new DomainError('conflict', "the campaign's factors changed after this search; search again", 'fromJob');
+  }
+  return storeDesign(campaignId, spec, JSON.parse(job.resultJson) as DesignResult, actor);
+}
+
+async function storeDesign(campaignId: string, spec: DesignSpec, result: DesignResult, actor: string) {
   const client = await db();
   return client.$transaction(async (tx) => {
     const last = await tx.design.findFirst({ where: { campaignId }, orderBy: { version: 'desc' } });

@@ -1,4 +1,4 @@
 import { jsonPost } from '@/server/api/http';
-import { handleDesignRequest } from '@/server/api/designs';
+import { handleDesignRequestOffThread } from '@/server/api/designs';
 export const runtime = 'nodejs';
-export const POST = jsonPost(handleDesignRequest);
+export const POST = jsonPost(handleDesignRequestOffThread);

@@ -1,5 +1,5 @@
 import { jsonPost } from '@/server/api/http';
-import { handleSuggestionRequest } from '@/server/api/suggestions';
+import { handleSuggestionRequestOffThread } from '@/server/api/suggestions';
 
 export const runtime = 'nodejs';
-export const POST = jsonPost(handleSuggestionRequest);
+export const POST = jsonPost(handleSuggestionRequestOffThread);

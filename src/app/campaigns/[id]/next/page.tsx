@@ -8,8 +8,10 @@ import { listSuggestions } from '@/server/repos/suggestions';
 
 export const dynamic = 'force-dynamic';
 
-export default async function NextTrialsPage({ params }: { params: Promise<{ id: string }> }) {
+export default async function NextTrialsPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ job?: string | string[] }> }) {
   const { id } = await params;
+  const jobParam = (await searchParams).job;
+  const initialJob = typeof jobParam === 'string' && /^[A-Za-z0-9_-]{1,64}$/.test(jobParam) ? jobParam : null;
   const campaign = await getCampaign(id).catch((e) => {
     if (isDomainError(e) && e.code === 'not_found') notFound();
     throw e;
@@ -19,7 +21,7 @@ export default async function NextTrialsPage({ params }: { params: Promise<{ id:
   return (
     <>
       <CampaignNav id={id} current="/next" name={campaign.name} isDemo={campaign.isDemo} />
-      <SurrogatePanel campaignId={id} responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit }))} units={units} />
+      <SurrogatePanel campaignId={id} responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit }))} units={units} initialJob={initialJob} />
       <h2>Most informative trial for the linear model</h2>
       <p className="muted">
         The setting the campaign&apos;s runs know least about: the candidate with the largest prediction variance under the chosen

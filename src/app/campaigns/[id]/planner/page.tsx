@@ -10,8 +10,11 @@ import { listRuns } from '@/server/repos/runs';
 
 export const dynamic = 'force-dynamic';
 
-export default async function PlannerPage({ params }: { params: Promise<{ id: string }> }) {
+export default async function PlannerPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ jobs?: string | string[] }> }) {
   const { id } = await params;
+  // Candidate searches still running or finished, by candidate position (the panel puts them in the URL).
+  const jobsParam = (await searchParams).jobs;
+  const initialJobs = (typeof jobsParam === 'string' ? jobsParam : '').split(',').slice(0, 3).map((j) => (/^[A-Za-z0-9_-]{1,64}$/.test(j) ? j : ''));
   const campaign = await getCampaign(id).catch((e) => {
     if (isDomainError(e) && e.code === 'not_found') notFound();
     throw e;
@@ -39,7 +42,7 @@ export default async function PlannerPage({ params }: { params: Promise<{ id: st
         <Link href={`/campaigns/${id}`}>← back to Plan &amp; design</Link>
         {hard.length ? <span className="muted"> Hard-to-change: {hard.map((f) => `${f.name} (${f.changeMinutes} min per change)`).join(', ')}; give whole plots for a split-plot candidate.</span> : null}
       </p>
-      <PlannerPanel campaignId={id} defaults={[base, optimal]} hasRuns={runs.length > 0} />
+      <PlannerPanel campaignId={id} defaults={[base, optimal]} hasRuns={runs.length > 0} initialJobs={initialJobs.some(Boolean) ? initialJobs : []} />
     </>
   );
 }
