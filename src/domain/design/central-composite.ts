@@ -54,6 +54,8 @@ export interface CentralCompositeDesign {
   cubeRuns: number;
   /** How the cube was split, when it was (3 or more blocks). */
   blocking?: FactorialBlocking;
+  /** Blocked designs: the α that makes the blocks orthogonal to the quadratic model. */
+  blockingAlpha?: number;
 }
 
 /** Default centre runs of a central composite design (common practice, no source). */
@@ -134,5 +136,11 @@ export function centralCompositeDesign(factors: readonly Factor[], options: Cent
   } else {
     runs.push(...centreRuns(factors, n0));
   }
-  return { runs, alpha, cubeRuns: f, ...(blocking ? { blocking } : {}) };
+  return {
+    runs,
+    alpha,
+    cubeRuns: f,
+    ...(blocking ? { blocking } : {}),
+    ...(blocks >= 2 ? { blockingAlpha: orthogonalBlockingAlpha(f / cubeBlocks, k, n0, n0, replicates) } : {}),
+  };
 }

@@ -82,6 +82,9 @@ function checkSpec(spec: DesignSpec): void {
   if (spec.blocks !== undefined && spec.blocks > 1 && !BLOCKED_METHODS.includes(spec.method)) {
     throw new DomainError('unsupported', `blocks apply to ${BLOCKED_METHODS.join(', ')} designs; ${spec.method} designs here are not blocked`, 'blocks');
   }
+  if (spec.blockEffects !== undefined && spec.method !== 'optimal') {
+    throw new DomainError('unsupported', 'random block effects are taken into account by the optimal method only; leave blockEffects out or set method to "optimal"', 'blockEffects');
+  }
   if (spec.wholePlots !== undefined && spec.method !== 'optimal') {
     throw new DomainError('unsupported', 'whole plots (split-plot designs) are built by the optimal method; set method to "optimal"', 'wholePlots');
   }
@@ -215,6 +218,10 @@ function construct(
       if (spec.wholePlots !== undefined) {
         extras.optimal.wholePlots = spec.wholePlots;
         extras.optimal.varianceRatio = out.varianceRatio;
+      } else if (spec.blockEffects === 'random' && (spec.blocks ?? 1) > 1) {
+        extras.optimal.randomBlocks = spec.blocks;
+        extras.optimal.varianceRatio = out.varianceRatio;
+        notes.push('blocks were treated as random in the search; the efficiencies and power below treat them as fixed');
       }
       if (spec.factors.some((f) => f.hardToChange) && spec.wholePlots === undefined) {
         notes.push('hard-to-change factors were randomised freely; give wholePlots for a split-plot design');
@@ -246,6 +253,9 @@ function construct(
       });
       extras.axialDistance = d.alpha;
       if (d.blocking) extras.blocking = d.blocking;
+      if (d.blockingAlpha !== undefined && Math.abs(d.alpha - d.blockingAlpha) > 1e-9) {
+        notes.push(`at this α the blocks are not orthogonal to the quadratic model; α = ${d.blockingAlpha.toFixed(4)} (alpha "orthogonal") makes them so`);
+      }
       if (d.alpha > 1 + 1e-12) {
         notes.push(`axial runs sit at ±${d.alpha.toFixed(4)} in coded units, beyond the factor ranges; check the rig can reach them`);
       } else if (d.alpha < 1 - 1e-12) {
@@ -434,8 +444,9 @@ export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions =
     diagnostics.blocking = blockingSummary(spec.factors, terms, runs, scheme);
     if (scheme && diagnostics.fraction) diagnostics.fraction = markBlockAliases(diagnostics.fraction, scheme);
   }
-  if (diagnostics.optimal?.wholePlots !== undefined && diagnostics.optimal.criterion === 'D' && Number.isFinite(diagnostics.optimal.value)) {
-    diagnostics.optimal.generalisedDEfficiency = Math.exp(diagnostics.optimal.value / base.parameters) / base.runs;
+  const opt = diagnostics.optimal;
+  if (opt && (opt.wholePlots !== undefined || opt.randomBlocks !== undefined) && opt.criterion === 'D' && Number.isFinite(opt.value)) {
+    opt.generalisedDEfficiency = Math.exp(opt.value / base.parameters) / base.runs;
   }
   return { runs, diagnostics, method: spec.method, model, terms: terms.map((t) => t.label), seed };
 }

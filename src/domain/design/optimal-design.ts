@@ -1,4 +1,5 @@
-/** From a design request to a coordinate-exchange problem: levels, blocks, whole plots, existing runs. */
+/** From a design request to a coordinate-exchange problem: levels, blocks (fixed or random), whole plots, existing runs. */
+// Goos & Vandebroek (2001), Comput. Statist. Data Anal. 37:433-453 (D-optimal designs with random block effects)
 import { invalidInput } from '../errors';
 import { standardTerms, type CategoricalFactor, type Factor, type ModelTerm, type StandardModel } from '../factors';
 import { codedLevels } from './levels';
@@ -62,7 +63,12 @@ export function optimalDesign(spec: DesignSpec, model: StandardModel, existingCo
   const eta = options.varianceRatio ?? 1;
   if (!(eta >= 0) || !Number.isFinite(eta)) throw invalidInput('varianceRatio', 'varianceRatio must be a number of at least 0');
 
-  const block = blocks > 1 ? blockFactor(factors, existingCoded.length > 0 ? blocks + 1 : blocks) : undefined;
+  const effects = spec.blockEffects ?? 'fixed';
+  if (effects !== 'fixed' && effects !== 'random') throw invalidInput('blockEffects', 'blockEffects must be "fixed" or "random"');
+  const randomBlocks = blocks > 1 && effects === 'random';
+  if (effects === 'random' && blocks < 2) throw invalidInput('blocks', 'random block effects need blocks of 2 or more');
+  // Random blocks enter M through V = I + η Z Z' (as whole plots with no hard-to-change factor), not as model columns.
+  const block = blocks > 1 && !randomBlocks ? blockFactor(factors, existingCoded.length > 0 ? blocks + 1 : blocks) : undefined;
   const allFactors = block ? [...factors, block] : factors.slice();
   const allTerms = block ? [...terms, { label: block.name, parts: [{ name: block.name, power: 1 }] }] : terms;
   const p = allTerms.reduce((acc, t) => acc + t.parts.reduce((m, part) => {
@@ -83,7 +89,7 @@ export function optimalDesign(spec: DesignSpec, model: StandardModel, existingCo
   const region = codedRegion({ factors: allFactors, constraints: spec.constraints, disallowed: spec.disallowed });
   const offset = existingCoded.length > 0 && block ? 1 : 0;
   const blockOf = block ? evenGroups(n, blocks).map((b) => b + offset) : null;
-  const plotOf = wholePlots !== undefined ? evenGroups(n, wholePlots) : undefined;
+  const plotOf = wholePlots !== undefined ? evenGroups(n, wholePlots) : randomBlocks ? evenGroups(n, blocks) : undefined;
   const existing = block ? existingCoded.map((c) => [...c, 0]) : existingCoded;
   const search = coordinateExchange(
     {
@@ -95,7 +101,7 @@ export function optimalDesign(spec: DesignSpec, model: StandardModel, existingCo
       levels: exchangeLevels(allFactors, allTerms),
       fixedFactors: block ? [allFactors.length - 1] : [],
       fixedValues: blockOf ? blockOf.map((b) => new Map([[allFactors.length - 1, b]])) : undefined,
-      wholePlotFactors: plotOf ? hardToChange : undefined,
+      wholePlotFactors: plotOf ? (randomBlocks ? [] : hardToChange) : undefined,
       wholePlotOf: plotOf,
       varianceRatio: eta,
     },
@@ -104,7 +110,8 @@ export function optimalDesign(spec: DesignSpec, model: StandardModel, existingCo
   const runs: CodedRun[] = search.coded.map((c, i) => {
     const run: CodedRun = { coded: c.slice(0, factors.length) };
     if (blockOf) run.block = blockOf[i]! + (offset ? 0 : 1);
-    if (plotOf) run.wholePlot = plotOf[i]! + 1;
+    else if (randomBlocks) run.block = plotOf![i]! + 1;
+    else if (plotOf) run.wholePlot = plotOf[i]! + 1;
     return run;
   });
   return { runs, search, terms, blockFactor: block, varianceRatio: plotOf ? eta : undefined };

@@ -32,7 +32,10 @@ export interface OptimalProblem {
   fixedFactors?: readonly number[];
   /** Fixed coordinate values per new run (e.g. its block), factor index → value. */
   fixedValues?: readonly ReadonlyMap<number, number>[];
-  /** Split plot: hard-to-change factor indices, and the whole plot of each new run (0-based). */
+  /**
+   * Split plot: hard-to-change factor indices, and the whole plot of each new run (0-based). A
+   * grouping with no whole-plot factors is a set of random blocks.
+   */
   wholePlotFactors?: readonly number[];
   wholePlotOf?: readonly number[];
   /** η = σ²(whole plot) / σ²(sub-plot); default 1. */
@@ -226,7 +229,8 @@ export function coordinateExchange(problem: OptimalProblem, options: OptimalSear
   const existingRows = new Float64Array(existing.length * p);
   existing.forEach((c, i) => model.row(c, existingRows.subarray(i * p, (i + 1) * p)));
   const eta = problem.varianceRatio ?? 1;
-  const plotOf = problem.wholePlotOf && problem.wholePlotFactors?.length ? problem.wholePlotOf : null;
+  // Whole plots with no hard-to-change factor are random blocks: they change M, not the exchanges.
+  const plotOf = problem.wholePlotOf ?? null;
   const plotCount = plotOf ? Math.max(...plotOf) + 1 : 0;
   const plotSizes = Array.from({ length: plotCount }, (_, wi) => plotOf!.filter((q) => q === wi).length);
   const plotMembers = Array.from({ length: plotCount }, (_, wi) => plotOf!.map((q, i) => (q === wi ? i : -1)).filter((i) => i >= 0));

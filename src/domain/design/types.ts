@@ -41,6 +41,11 @@ export interface DesignSpec {
   alpha?: AxialDistance;
   replicates?: number;
   blocks?: number;
+  /**
+   * Optimal designs: blocks as fixed effects (default) or as random effects with variance ratio
+   * `varianceRatio` = σ²(block) / σ², like whole plots with no hard-to-change factor.
+   */
+  blockEffects?: 'fixed' | 'random';
   wholePlots?: number;
   constraints?: LinearConstraint[];
   disallowed?: DisallowedCombination[];
@@ -49,7 +54,7 @@ export interface DesignSpec {
   seed?: number;
   /** Optimal designs: random starts of the coordinate exchange (default 20). */
   starts?: number;
-  /** Split-plot designs: η = σ²(whole plot) / σ²(sub-plot) (default 1). */
+  /** Split-plot designs: η = σ²(whole plot) / σ²(sub-plot); random blocks: σ²(block) / σ² (default 1). */
   varianceRatio?: number;
   /** Settings of the power diagnostics (always computed; these defaults: effect 2σ, σ = 1, α = 0.05). */
   power?: PowerSettings;
@@ -115,8 +120,10 @@ export interface DesignDiagnostics {
     startsCompleted: number;
     stopped: boolean;
     wholePlots?: number;
+    /** Random blocks: the number of blocks treated as random. */
+    randomBlocks?: number;
     varianceRatio?: number;
-    /** Split-plot designs: |X'V^-1 X / n|^(1/p), the D-efficiency under the split-plot error structure. */
+    /** Split-plot and random-block designs: |X'V^-1 X / n|^(1/p), the D-efficiency under that error structure. */
     generalisedDEfficiency?: number;
   };
 }

@@ -27,6 +27,7 @@ export const designSpecSchema = z.object({
   alpha: z.union([z.enum(['rotatable', 'orthogonal', 'face-centred']), z.number().positive().max(10)]).optional(),
   replicates: z.number().int().min(1).max(20).optional(),
   blocks: z.number().int().min(1).max(100).optional(),
+  blockEffects: z.enum(['fixed', 'random']).optional(),
   wholePlots: z.number().int().min(1).max(1000).optional(),
   constraints: z
     .array(z.object({ terms: z.record(z.string(), z.number()), min: z.number().optional(), max: z.number().optional() }))

@@ -286,3 +286,49 @@ describe('POST /api/v1/designs with blocks', () => {
     expect(out.diagnostics.blocking!.generators).toHaveLength(2);
   });
 });
+
+describe('optimal designs with random block effects', () => {
+  const spec = { factors: cont(3), method: 'optimal' as const, model: 'interactions' as const, runs: 16, blocks: 4, blockEffects: 'random' as const, seed: 2, starts: 6 };
+
+  it('reports log |X\'V⁻¹X| with V = I + η ZZ\' for the design it returns (checked by a direct computation)', () => {
+    const eta = 0.5;
+    const d = generateDesign({ ...spec, varianceRatio: eta });
+    expect(d.diagnostics.optimal!.randomBlocks).toBe(4);
+    expect(d.diagnostics.optimal!.varianceRatio).toBe(eta);
+    expect(d.runs.every((r) => r.block !== undefined && r.wholePlot === undefined)).toBe(true);
+    // X'V⁻¹X by blocks: V_b⁻¹ = I − η/(1 + η n_b) 11' (Sherman–Morrison), X the interactions model.
+    const row = (c: number[]) => [1, c[0]!, c[1]!, c[2]!, c[0]! * c[1]!, c[0]! * c[2]!, c[1]! * c[2]!];
+    const p = 7;
+    const m = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+    for (const b of [1, 2, 3, 4]) {
+      const rows = d.runs.filter((r) => r.block === b).map((r) => row(r.coded));
+      const sum = new Array<number>(p).fill(0);
+      for (const x of rows) x.forEach((v, j) => (sum[j]! += v));
+      const g = eta / (1 + eta * rows.length);
+      for (let a = 0; a < p; a++) for (let c = 0; c < p; c++) m[a]![c]! += rows.reduce((s, x) => s + x[a]! * x[c]!, 0) - g * sum[a]! * sum[c]!;
+    }
+    // log-determinant by Cholesky.
+    let logDet = 0;
+    const l = m.map((r) => r.slice());
+    for (let j = 0; j < p; j++) {
+      for (let k = 0; k < j; k++) for (let i = j; i < p; i++) l[i]![j]! -= l[i]![k]! * l[j]![k]!;
+      const piv = Math.sqrt(l[j]![j]!);
+      logDet += 2 * Math.log(piv);
+      for (let i = j; i < p; i++) l[i]![j]! /= piv;
+    }
+    expect(d.diagnostics.optimal!.value).toBeCloseTo(logDet, 8);
+    expect(generateDesign({ ...spec, varianceRatio: eta }).runs).toEqual(d.runs);
+  });
+
+  it('a large variance ratio gives a design as good under fixed blocks as the fixed-block search (Goos & Vandebroek 2001)', () => {
+    const fixed = generateDesign({ ...spec, blockEffects: 'fixed' });
+    const random = generateDesign({ ...spec, varianceRatio: 1000 });
+    expect(random.diagnostics.dEfficiency).toBeGreaterThan(0.99 * fixed.diagnostics.dEfficiency);
+    expect(random.diagnostics.blocking!.orthogonal).toBe(true);
+  });
+
+  it('refuses random blocks outside optimal designs or without blocks, naming the field', () => {
+    expect(catchError(() => generateDesign({ factors: cont(3), method: 'full-factorial', blocks: 2, blockEffects: 'random' })).field).toBe('blockEffects');
+    expect(catchError(() => generateDesign({ ...spec, blocks: 1 })).field).toBe('blocks');
+  });
+});
