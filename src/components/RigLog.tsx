@@ -9,6 +9,7 @@ import { useRouter } from 'next/navigation';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
+import { FAILURE_KINDS, failureReasonText, readingFields, type FailureKind, type ReadingField } from '@/domain/metrics/standard-readings';
 import { checkTabletReadings } from './rig-readings';
 import { deleteEntry, entriesOf, newEntryKey, retryDelayMs, saveEntry, sendEntry, type LogBody, type QueueEntry } from './rig-queue';
 
@@ -56,6 +57,20 @@ const STATE_LABEL: Record<QueueEntry['state'], string> = { sent: 'sent', waiting
 /** Sent entries are shown for a day, then dropped from the tablet (the server holds them). */
 const KEEP_SENT_MS = 24 * 3600 * 1000;
 
+/** One numeric reading: what it is, its unit, and the name it is stored (and named in messages) under. */
+function ReadingInput({ field, value, invalid, onChange }: { field: ReadingField; value: string; invalid: boolean; onChange: (v: string) => void }) {
+  const unit = field.unit && field.unit !== 'count' ? field.unit : '';
+  return (
+    <div>
+      <label htmlFor={`obs-${field.name}`}>
+        {field.label} {unit ? <span className="unit">({unit})</span> : null}
+        {field.standard ? <span className="muted"> · {field.name}</span> : null}
+      </label>
+      <input id={`obs-${field.name}`} inputMode={field.standard === 'hopsCompleted' ? 'numeric' : 'decimal'} value={value} onChange={(e) => onChange(e.target.value)} aria-invalid={invalid || undefined} />
+    </div>
+  );
+}
+
 export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }: RigLogProps) {
   const router = useRouter();
   const running = queue.find((q) => q.state === 'running' && q.trialId);
@@ -66,7 +81,8 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
   const [operator, setOperator] = useState('');
   const [readings, setReadings] = useState<Record<string, string>>({});
   const [outcome, setOutcome] = useState<'passed' | 'failed'>('passed');
-  const [failureReason, setFailureReason] = useState('');
+  const [failureKind, setFailureKind] = useState<FailureKind | ''>('');
+  const [failureText, setFailureText] = useState('');
   const [notes, setNotes] = useState('');
   const [error, setError] = useState<ApiError | null>(null);
   const [message, setMessage] = useState<string | null>(null);
@@ -160,7 +176,8 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
   function resetForm() {
     setReadings({});
     setOutcome('passed');
-    setFailureReason('');
+    setFailureKind('');
+    setFailureText('');
     setNotes('');
   }
 
@@ -171,6 +188,10 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
     setActive({ runId: item.runId, runNumber: item.runNumber, startedAt: new Date().toISOString(), key: newEntryKey() });
     resetForm();
   }
+
+  const fields = readingFields(responses);
+  const allFields = [...fields.standard, ...fields.others];
+  const failureReason = outcome === 'failed' ? failureReasonText(failureKind, failureText) : '';
 
   async function finishOnServer(trial: ActiveTrial, observations: Record<string, number>) {
     const res = await postJson<{ warnings: { field: string; message: string }[] }>(`/api/v1/campaigns/${campaignId}/trials/${trial.trialId}/finish`, {
@@ -192,18 +213,22 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
     if (!active) return;
     setError(null);
     const observations: Record<string, number> = {};
-    for (const r of responses) {
-      const raw = (readings[r.name] ?? '').trim().replace(',', '.');
+    for (const f of allFields) {
+      const raw = (readings[f.name] ?? '').trim().replace(',', '.');
       if (raw === '') continue;
       const n = Number(raw);
       if (!Number.isFinite(n)) {
-        setError({ code: 'invalid_input', field: `observations.${r.name}`, message: `${r.name} must be a number${r.unit ? ` in ${r.unit}` : ''}` });
+        setError({ code: 'invalid_input', field: `observations.${f.name}`, message: `${f.name} must be a number${f.unit ? ` in ${f.unit}` : ''}` });
         return;
       }
-      observations[r.name] = n;
+      observations[f.name] = n;
     }
-    if (outcome === 'failed' && failureReason.trim() === '') {
-      setError({ code: 'invalid_input', field: 'failureReason', message: 'say why the trial failed (fell, broke, stalled …)' });
+    if (outcome === 'failed' && failureKind === '') {
+      setError({ code: 'invalid_input', field: 'failureReason', message: 'choose why the trial failed: fell, broke, stalled or other' });
+      return;
+    }
+    if (outcome === 'failed' && failureKind === 'other' && failureText.trim() === '') {
+      setError({ code: 'invalid_input', field: 'failureReason', message: 'describe the failure in a few words (the reason is "other")' });
       return;
     }
     setBusy(true);
@@ -323,37 +348,49 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
       {active ? (
         <form className="panel current-trial" onSubmit={finish} noValidate>
           <h2 style={{ marginTop: 0 }}>Run {active.runNumber} — trial in progress</h2>
-          <div className="row">
-            {responses.map((r) => (
-              <div key={r.name}>
-                <label htmlFor={`obs-${r.name}`}>
-                  {r.name} <span className="unit">{r.unit ? `(${r.unit})` : ''}</span>
-                </label>
-                <input
-                  id={`obs-${r.name}`}
-                  inputMode="decimal"
-                  value={readings[r.name] ?? ''}
-                  onChange={(e) => setReadings({ ...readings, [r.name]: e.target.value })}
-                  aria-invalid={error?.field === `observations.${r.name}` || undefined}
-                />
-              </div>
+          <div className="row" data-testid="standard-readings">
+            {fields.standard.map((f) => (
+              <ReadingInput key={f.name} field={f} value={readings[f.name] ?? ''} invalid={error?.field === `observations.${f.name}`} onChange={(v) => setReadings({ ...readings, [f.name]: v })} />
             ))}
           </div>
           <div className="row" style={{ marginTop: '0.6rem' }}>
             <div>
               <label htmlFor="rig-outcome">Outcome</label>
               <select id="rig-outcome" value={outcome} onChange={(e) => setOutcome(e.target.value as 'passed' | 'failed')}>
-                <option value="passed">completed the hop sequence</option>
-                <option value="failed">failed (fell, broke, stalled)</option>
+                <option value="passed">passed: completed the hop sequence</option>
+                <option value="failed">failed</option>
               </select>
             </div>
             {outcome === 'failed' ? (
               <div>
                 <label htmlFor="rig-reason">Failure reason</label>
-                <input id="rig-reason" value={failureReason} onChange={(e) => setFailureReason(e.target.value)} aria-invalid={error?.field === 'failureReason' || undefined} />
+                <select id="rig-reason" value={failureKind} onChange={(e) => setFailureKind(e.target.value as FailureKind | '')} aria-invalid={(error?.field === 'failureReason' && failureKind === '') || undefined}>
+                  <option value="">(choose)</option>
+                  {FAILURE_KINDS.map((k) => (
+                    <option key={k} value={k}>
+                      {k}
+                    </option>
+                  ))}
+                </select>
+              </div>
+            ) : null}
+            {outcome === 'failed' && failureKind !== '' ? (
+              <div>
+                <label htmlFor="rig-reason-text">{failureKind === 'other' ? 'What happened' : 'Details (optional)'}</label>
+                <input id="rig-reason-text" value={failureText} onChange={(e) => setFailureText(e.target.value)} aria-invalid={(error?.field === 'failureReason' && failureKind === 'other') || undefined} />
               </div>
             ) : null}
           </div>
+          {fields.others.length ? (
+            <>
+              <h3 style={{ marginBottom: '0.3rem' }}>Other responses of this campaign</h3>
+              <div className="row" data-testid="other-readings">
+                {fields.others.map((f) => (
+                  <ReadingInput key={f.name} field={f} value={readings[f.name] ?? ''} invalid={error?.field === `observations.${f.name}`} onChange={(v) => setReadings({ ...readings, [f.name]: v })} />
+                ))}
+              </div>
+            </>
+          ) : null}
           <label htmlFor="rig-notes" style={{ marginTop: '0.6rem' }}>
             Notes
           </label>

@@ -10,7 +10,7 @@ import { DomainError } from '@/domain/errors';
 import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { trialLogSchema } from '@/server/api/schemas/rig';
 import { closeDb, db } from '@/server/db/client';
-import { campaignData } from '@/server/repos/analyses';
+import { campaignData, fitCampaign } from '@/server/repos/analyses';
 import { createCampaign } from '@/server/repos/campaigns';
 import { logTrial } from '@/server/repos/rig-log';
 import { commitDesign, listRuns } from '@/server/repos/runs';
@@ -127,5 +127,20 @@ describe('standard rig readings on a real database', () => {
     const { rows } = await campaignData(campaignId);
     expect(rows.map((r) => r.energy_drawn).filter((v) => v !== undefined)).toEqual([950]);
     expect(rows.map((r) => r.distance_travelled).filter((v) => v !== undefined).sort((a, b) => Number(a) - Number(b))).toEqual([35, 420]);
+  });
+
+  it('fits a standard reading the campaign did not declare as a response', async () => {
+    // Three more trials with energy drawn on the untried runs of the 2 × 3 design.
+    const runs = await listRuns(campaignId);
+    const energy = [700, 820, 1010];
+    for (let i = 0; i < energy.length; i++) {
+      await logTrial(campaignId, entry(runs[3 + i]!.id, { energy_drawn: energy[i]! }), `std-key-fit-${i}`, 'tester', NOW);
+    }
+    const fit = await fitCampaign(campaignId, 'energy_drawn', 'main-effects', undefined, 'tester');
+    expect(fit.n).toBe(4);
+    expect(fit.response).toBe('energy_drawn');
+    const e = await rejection(fitCampaign(campaignId, 'apex_height', 'main-effects', undefined, 'tester'));
+    expect(e.field).toBe('response');
+    expect(e.message).toMatch(/known: apex, landing_score, hops_completed, distance_travelled, energy_drawn|known: apex, hops_completed/);
   });
 });

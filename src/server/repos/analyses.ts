@@ -13,6 +13,7 @@ import {
 } from '@/domain/analysis';
 import { DomainError } from '@/domain/errors';
 import { standardTerms, type Factor, type StandardModel } from '@/domain/factors';
+import { observationFields } from '@/domain/metrics/standard-readings';
 import { db } from '@/server/db/client';
 import { audit } from './audit';
 import { domainFactors, getCampaign } from './campaigns';
@@ -72,8 +73,10 @@ export function supportedTerms(factors: Factor[], rows: DataRow[], model: Standa
 
 export async function fitCampaign(campaignId: string, response: string, model: StandardModel, terms?: string[], actor = 'local') {
   const campaign = await getCampaign(campaignId);
-  if (!campaign.responses.some((r) => r.name === response)) {
-    throw new DomainError('invalid_input', `"${response}" is not a response of this campaign; known: ${campaign.responses.map((r) => r.name).join(', ')}`, 'response');
+  // A response of the campaign, or a standard rig reading logged under its fixed name (apex_height, …).
+  const fittable = observationFields(campaign.responses).map((f) => f.name);
+  if (!fittable.includes(response)) {
+    throw new DomainError('invalid_input', `"${response}" is not a response or standard reading of this campaign; known: ${fittable.join(', ')}`, 'response');
   }
   const { rows, factors } = await campaignData(campaignId);
   const usable = rows.filter((r) => typeof r[response] === 'number');

@@ -3,6 +3,7 @@ import { AnalysisPanel } from '@/components/AnalysisPanel';
 import type { AnalysisViewData } from '@/components/AnalysisView';
 import { CampaignNav } from '@/components/CampaignNav';
 import { isDomainError } from '@/domain/errors';
+import { observationFields } from '@/domain/metrics/standard-readings';
 import { latestAnalysis } from '@/server/repos/analyses';
 import { getCampaign } from '@/server/repos/campaigns';
 
@@ -23,7 +24,7 @@ export default async function AnalysisPage({ params }: { params: Promise<{ id: s
         plots (hard-to-change factors), the fit is a split plot instead: a whole-plot random effect by restricted maximum likelihood,
         with Kenward–Roger degrees of freedom. Each fit is stored with the data it used. <a href={`/campaigns/${id}/report`}>Printable findings report</a>
       </p>
-      <AnalysisPanel campaignId={id} responses={campaign.responses.map((r) => r.name)} initial={latest as AnalysisViewData | null} />
+      <AnalysisPanel campaignId={id} responses={[...campaign.responses.map((r) => r.name), ...observationFields(campaign.responses).filter((f) => !f.response).map((f) => f.name)]} initial={latest as AnalysisViewData | null} />
     </>
   );
 }
