@@ -145,6 +145,9 @@ export const campaignDesignSchema = z.object({
   resolution: z.number().int().min(3).max(8).optional(),
   wholePlots: z.number().int().min(2).max(500).optional(),
   blocks: z.number().int().min(1).max(50).optional(),
+  /** Optimal designs: blocks as fixed (default) or random effects; varianceRatio = σ²(block or whole plot) / σ². */
+  blockEffects: z.enum(['fixed', 'random'], { error: 'blockEffects must be "fixed" or "random"' }).optional(),
+  varianceRatio: z.number().min(0, 'varianceRatio must be at least 0').max(1000, 'varianceRatio must be at most 1000').optional(),
   /** Optimal designs: random starts of the search (more starts, longer search; run as a job from the planner). */
   starts: z.number().int('starts must be a whole number').min(1, 'at least 1 start').max(10_000, 'at most 10000 starts').optional(),
 });
