@@ -51,6 +51,8 @@ describe('planner page and week grid on a tablet', () => {
     runsB = Number(await page.getByLabel('Candidate B runs').inputValue());
     expect(runsB).toBeGreaterThan(15); // the interactions model of the demo has 15 parameters
     await page.getByRole('button', { name: 'Compare candidates' }).click();
+    // The optimal candidate is searched as a job; its design joins the table when the job is done.
+    await expect.poll(() => page.getByTestId('job').getAttribute('data-status'), { timeout: 90_000 }).toBe('done');
     const table = page.getByTestId('comparison-table');
     await table.waitFor({ timeout: 60_000 });
     expect(await table.locator('thead th').count()).toBe(3);
