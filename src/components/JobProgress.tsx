@@ -111,7 +111,7 @@ export function JobProgress({ job, label, error }: { job: JobState | null; label
       </p>
       {!ended ? (
         <button type="button" className="btn danger job-cancel" onClick={cancel} disabled={asked || job.cancelRequested}>
-          Cancel {label.toLowerCase()}
+          Cancel {label}
         </button>
       ) : null}
       {job.status === 'failed' && job.error ? <ErrorBox error={job.error} /> : null}
