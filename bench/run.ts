@@ -5,6 +5,7 @@
 import { readdirSync, existsSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { fileURLToPath, pathToFileURL } from 'node:url';
+import { loadavg } from 'node:os';
 import path from 'node:path';
 import type { BenchCase } from './types';
 
@@ -35,7 +36,25 @@ async function timeCase(c: BenchCase) {
   return { seconds: median(times), extra: c.report ? c.report(prepared, last) : {} };
 }
 
+function load(): string {
+  return loadavg()
+    .map((l) => l.toFixed(2))
+    .join(' ');
+}
+
+const referenceRuns = new Map<string, Record<string, unknown> | string>();
+
+/** A reference script's result; each script (with its arguments) runs once per bench run. */
 function runReference(ref: NonNullable<BenchCase['reference']>): Record<string, unknown> | string {
+  const key = JSON.stringify([ref.script, ref.args ?? []]);
+  const cached = referenceRuns.get(key);
+  if (cached !== undefined) return cached;
+  const result = runReferenceOnce(ref);
+  referenceRuns.set(key, result);
+  return result;
+}
+
+function runReferenceOnce(ref: NonNullable<BenchCase['reference']>): Record<string, unknown> | string {
   const script = path.join(here, 'reference', ref.script);
   const r = spawnSync(SYSTEM_PYTHON, [script, ...(ref.args ?? [])], {
     encoding: 'utf8',
@@ -57,6 +76,7 @@ function runReference(ref: NonNullable<BenchCase['reference']>): Record<string, 
 async function main() {
   const files = readdirSync(path.join(here, 'cases')).filter((f) => f.endsWith('.ts')).sort();
   const results: string[] = [];
+  console.log(`load average (1, 5, 15 min) at start: ${load()}`);
   for (const f of files) {
     const mod = (await import(pathToFileURL(path.join(here, 'cases', f)).href)) as { cases: BenchCase[] };
     for (const c of mod.cases) {
@@ -65,6 +85,7 @@ async function main() {
       let line = `${c.name.padEnd(58)} ${fmt(seconds).padStart(10)}`;
       if (c.target) line += `  target ${c.target}`;
       if (c.targetSeconds !== undefined) line += seconds <= c.targetSeconds ? ' [met]' : ' [MISSED]';
+      line += `  load=${load()}`;
       for (const [k, v] of Object.entries(extra)) line += `  ${k}=${typeof v === 'number' ? Number(v.toPrecision(6)) : v}`;
       if (c.reference) {
         const ref = runReference(c.reference);
@@ -75,6 +96,13 @@ async function main() {
           line += `\n    ${c.reference.label}: ${fmt(rs)}  ratio ours/reference = ${ratio.toFixed(2)}`;
           if (c.reference.maxRatio !== undefined) line += ratio <= c.reference.maxRatio ? ` [met ≤ ${c.reference.maxRatio}]` : ` [MISSED ≤ ${c.reference.maxRatio}]`;
           for (const [k, v] of Object.entries(ref)) if (k !== 'seconds') line += `  ${k}=${String(v)}`;
+          for (const other of c.reference.compare ?? []) {
+            const os = Number(ref[other.key]);
+            if (!(os > 0)) continue;
+            const r2 = seconds / os;
+            line += `\n    ${other.label}: ${fmt(os)}  ratio ours/reference = ${r2.toFixed(2)}`;
+            if (other.maxRatio !== undefined) line += r2 <= other.maxRatio ? ` [met ≤ ${other.maxRatio}]` : ` [MISSED ≤ ${other.maxRatio}]`;
+          }
         }
       }
       console.log(line);

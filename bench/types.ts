@@ -18,7 +18,18 @@ export interface BenchCase {
    * Reference run: a script under bench/reference/ executed with the system python3. It prints one
    * JSON line `{"seconds": <median seconds>, ...extra}`; extra keys are printed alongside.
    */
-  reference?: { script: string; args?: string[]; label: string; maxRatio?: number };
+  reference?: {
+    script: string;
+    args?: string[];
+    label: string;
+    maxRatio?: number;
+    /**
+     * Further timings the script prints beside `seconds` (e.g. `{"lstsq_seconds": …}`), each shown
+     * as its own ratio ours / that timing. A script with the same arguments runs once per `npm run
+     * bench`, so cases that share it are compared with the same reference figures.
+     */
+    compare?: { key: string; label: string; maxRatio?: number }[];
+  };
   /** Extra figures for the report (e.g. objective values), computed once after timing. */
   report?: (prepared: unknown, lastResult: unknown) => Record<string, number | string>;
 }

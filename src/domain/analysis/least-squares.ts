@@ -419,13 +419,17 @@ function chunkedStart(x: Float64Array, yv: Float64Array, n: number, p: number, o
   return { qr, c, ...conditionOf(qr, n, p), factorisation: 'row-chunks' };
 }
 
-/** r = y − Z c with Z the scaled basis columns of x, column by column within blocks of rows (r stays in cache). */
-function residualsInto(r: Float64Array, x: Float64Array, yv: Float64Array, qr: PivotedQr, c: Float64Array): void {
+/**
+ * r = y − Z c with Z the scaled basis columns of x, column by column within blocks of rows (r stays
+ * in cache); with `g`, also g = Zᵀr from the same blocks while they are in cache.
+ */
+function residualsInto(r: Float64Array, x: Float64Array, yv: Float64Array, qr: PivotedQr, c: Float64Array, g?: Float64Array): void {
   const { rank, pivot, scale } = qr;
   const n = yv.length;
   r.set(yv);
   const ck = new Float64Array(rank);
   for (let k = 0; k < rank; k++) ck[k] = c[k]! / scale[pivot[k]!]!;
+  if (g) g.fill(0);
   for (let i0 = 0; i0 < n; i0 += RESIDUAL_BLOCK) {
     const i1 = Math.min(n, i0 + RESIDUAL_BLOCK);
     for (let k = 0; k < rank; k++) {
@@ -433,16 +437,7 @@ function residualsInto(r: Float64Array, x: Float64Array, yv: Float64Array, qr: P
       const b = ck[k]!;
       for (let i = i0; i < i1; i++) r[i] -= x[off + i]! * b;
     }
-  }
-}
-
-/** Zᵀ r with Z the scaled basis columns of x (length rank, pivoted order). */
-function basisTimes(x: Float64Array, r: Float64Array, qr: PivotedQr): Float64Array {
-  const { rank, pivot, scale } = qr;
-  const n = r.length;
-  const g = new Float64Array(rank);
-  for (let i0 = 0; i0 < n; i0 += RESIDUAL_BLOCK) {
-    const i1 = Math.min(n, i0 + RESIDUAL_BLOCK);
+    if (!g) continue;
     for (let k = 0; k < rank; k++) {
       const off = pivot[k]! * n;
       let s = 0;
@@ -450,8 +445,7 @@ function basisTimes(x: Float64Array, r: Float64Array, qr: PivotedQr): Float64Arr
       g[k] += s;
     }
   }
-  for (let k = 0; k < rank; k++) g[k] /= scale[pivot[k]!]!;
-  return g;
+  if (g) for (let k = 0; k < rank; k++) g[k] /= scale[pivot[k]!]!;
 }
 
 /**
@@ -480,12 +474,13 @@ export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p
     for (let i = 0; i < n; i++) r[i] = residualRow(z, zLow, n, rank, i, c, yv[i]!, 0);
     for (let s = 0; s < steps; s++) refineAugmented(qr, z, zLow, r, c, yv, null);
   } else {
-    residualsInto(r, x, yv, qr, c);
-    if (start.factorisation === 'row-chunks' && options.refinementSteps === undefined) {
+    const correct = start.factorisation === 'row-chunks' && options.refinementSteps === undefined;
+    const g = correct ? new Float64Array(rank) : undefined;
+    residualsInto(r, x, yv, qr, c, g);
+    if (g) {
       // One corrected semi-normal step in working precision, c += R⁻¹R⁻ᵀ Zᵀr: the triangle alone
       // leaves small coefficients of polynomial-like columns a few digits short (R is the same,
       // but the reflectors that refinement would use are not kept); this step restores them.
-      const g = basisTimes(x, r, qr);
       solveRt(qr, g);
       solveR(qr, g);
       for (let k = 0; k < rank; k++) c[k] += g[k]!;

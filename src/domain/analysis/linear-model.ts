@@ -53,15 +53,14 @@ function partialSs(fit: LeastSquaresFit, positions: number[]): number {
   return ss;
 }
 
-/** Pure-error sum of squares from runs that share the same factor setting. */
-function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number; groups: number } {
-  // Group runs by setting in an open-addressing table (hash of the values' bits, linear probing,
-  // exact comparison of the settings on a hash match): typed arrays only, no per-run objects.
+/**
+ * Runs grouped by their values in the given columns: an open-addressing table (hash of the values'
+ * bits, linear probing, exact comparison on a hash match), typed arrays only, no per-run objects.
+ */
+function groupRuns(cols: readonly Float64Array[], n: number): { groupOf: Int32Array; groups: number } {
   const buf = new Float64Array(1);
   const bits = new Uint32Array(buf.buffer);
-  const cols = frame.factorColumns;
   const k = cols.length;
-  const n = frame.n;
   const same = (a: number, b: number) => {
     for (let j = 0; j < k; j++) if (cols[j]![a] !== cols[j]![b]) return false;
     return true;
@@ -98,6 +97,17 @@ function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number
       slot = (slot + 1) & mask;
     }
   }
+  return { groupOf, groups };
+}
+
+/** Pure-error sum of squares from runs that share the same factor setting. */
+function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number; groups: number } {
+  const cols = frame.factorColumns;
+  const n = frame.n;
+  // Runs that differ in the first factor differ in their setting: when every value of it is
+  // distinct (as in observational data) there are no replicates, without hashing the rest.
+  if (cols.length > 1 && groupRuns(cols.slice(0, 1), n).groups === n) return { ss: 0, df: 0, groups: n };
+  const { groupOf, groups } = groupRuns(cols, n);
   if (groups === n) return { ss: 0, df: 0, groups };
   // Two passes per group: mean, then squared deviations with the usual correction term.
   const count = new Float64Array(groups);
