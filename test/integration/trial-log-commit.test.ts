@@ -11,7 +11,7 @@ import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { trialLogSchema } from '@/server/api/schemas/rig';
 import { closeDb, db } from '@/server/db/client';
 import { databaseConfig } from '@/server/db/config';
-import { createCampaign } from '@/server/repos/campaigns';
+import { cachedCampaign, createCampaign, forgetCampaign } from '@/server/repos/campaigns';
 import { logTrial } from '@/server/repos/rig-log';
 import { commitDesign, listRuns } from '@/server/repos/runs';
 import { logCommitStats } from '@/server/repos/trial-log-store';
@@ -142,5 +142,20 @@ describe('rig log write path under concurrency', () => {
     expect(await client.trial.count({ where: { idempotencyKey: { startsWith: 'commit-key-side-' } } })).toBe(10);
     const amended = await client.observation.findFirstOrThrow({ where: { trialId: first.id, name: 'energy' } });
     expect(amended.value).toBe(3.6);
+  });
+
+  it('holds the campaign definition in memory until it is forgotten after a change', async () => {
+    const client = await db();
+    const a = await cachedCampaign(campaignId);
+    expect(await cachedCampaign(campaignId)).toBe(a);
+    // A change to the definition (here written directly) is seen once the cache entry is dropped.
+    await client.response.updateMany({ where: { campaignId, name: 'energy' }, data: { unit: 'J' } });
+    expect((await cachedCampaign(campaignId)).responses.find((r) => r.name === 'energy')!.unit).toBe('mJ');
+    forgetCampaign(campaignId);
+    expect((await cachedCampaign(campaignId)).responses.find((r) => r.name === 'energy')!.unit).toBe('J');
+    const logged = await logTrial(campaignId, entry(300), 'commit-key-after-change', 'tester', NOW);
+    expect(logged.trial.observations.find((o) => o.name === 'energy')!.unit).toBe('J');
+    // An unknown campaign is refused and not remembered.
+    await expect(cachedCampaign('no-such-campaign')).rejects.toMatchObject({ code: 'not_found' });
   });
 });
