@@ -32,6 +32,10 @@ export interface CandidateSpec {
   seed: string;
   /** Optimal designs: random starts of the search (empty: the engine's default). */
   starts?: string;
+  /** Blocks (empty: none). */
+  blocks?: string;
+  /** Optimal designs: 'random' treats blocks as random effects (empty: fixed). */
+  blockEffects?: string;
 }
 
 interface Diagnostics {
@@ -50,6 +54,7 @@ interface Diagnostics {
   power?: { term: string; power: number }[];
   notes: string[];
   optimal?: { startsCompleted: number; stopped: boolean };
+  blocking?: { blocks: number; generators: string[]; confounded: { effect: string; aliases: string[] }[]; orthogonal: boolean; maxBlockCorrelation: number };
 }
 
 interface Preview {
@@ -70,6 +75,8 @@ export function candidateBody(c: CandidateSpec): Record<string, unknown> {
   num('centerPoints', 'centerPoints');
   num('wholePlots', 'wholePlots');
   num('seed', 'seed');
+  num('blocks', 'blocks');
+  if (c.method === 'optimal' && c.blockEffects === 'random' && c.blocks?.trim()) body.blockEffects = 'random';
   if (c.method === 'optimal' && c.starts?.trim()) body.starts = Number(c.starts);
   if (c.criterion) body.criterion = c.criterion;
   return body;
@@ -184,6 +191,8 @@ export function PlannerPanel({
   const rows: [string, (d: Diagnostics, p: Preview) => string][] = [
     ['Runs', (d) => String(d.runs)],
     ['Search', (d) => (d.optimal ? `${d.optimal.startsCompleted} random starts${d.optimal.stopped ? ' (cancelled: best design so far)' : ''}` : '—')],
+    ['Blocks', (d) => (d.blocking ? `${d.blocking.blocks}${d.blocking.orthogonal ? ', orthogonal to the model' : `, |r| with the model up to ${d.blocking.maxBlockCorrelation.toFixed(2)}`}` : '—')],
+    ['Confounded with blocks', (d) => (d.blocking?.confounded.length ? d.blocking.confounded.map((c) => [c.effect, ...c.aliases].join(' = ')).join('; ') : '—')],
     ['Whole plots', (_d, p) => String(new Set(p.runs.map((r) => r.wholePlot).filter((w) => w !== undefined && w !== null)).size || '—')],
     ['Parameters', (d) => String(d.parameters)],
     ['Error df', (d) => String(d.errorDegreesOfFreedom)],
@@ -241,6 +250,10 @@ export function PlannerPanel({
                     <input id={`c${n}-wp`} inputMode="numeric" value={c.wholePlots} onChange={(e) => update(i, { wholePlots: e.target.value })} aria-invalid={err?.field === 'wholePlots' || undefined} />
                   </div>
                   <div>
+                    <label htmlFor={`c${n}-blocks`}>Candidate {n} blocks</label>
+                    <input id={`c${n}-blocks`} inputMode="numeric" value={c.blocks ?? ''} onChange={(e) => update(i, { blocks: e.target.value })} aria-invalid={err?.field === 'blocks' || err?.field === 'input.blocks' || undefined} />
+                  </div>
+                  <div>
                     <label htmlFor={`c${n}-crit`}>Candidate {n} criterion</label>
                     <select id={`c${n}-crit`} value={c.criterion} onChange={(e) => update(i, { criterion: e.target.value })}>
                       <option value="">default (D)</option>
@@ -258,6 +271,13 @@ export function PlannerPanel({
                     <div>
                       <label htmlFor={`c${n}-starts`}>Candidate {n} random starts</label>
                       <input id={`c${n}-starts`} inputMode="numeric" placeholder="20" value={c.starts ?? ''} onChange={(e) => update(i, { starts: e.target.value })} aria-invalid={err?.field === 'input.starts' || err?.field === 'starts' || undefined} />
+                    </div>
+                    <div>
+                      <label htmlFor={`c${n}-beff`}>Candidate {n} block effects</label>
+                      <select id={`c${n}-beff`} value={c.blockEffects ?? ''} onChange={(e) => update(i, { blockEffects: e.target.value })}>
+                        <option value="">fixed</option>
+                        <option value="random">random (variance ratio 1)</option>
+                      </select>
                     </div>
                   </div>
                 ) : null}

@@ -16,6 +16,12 @@ describe('planner form to design request', () => {
     });
     expect(candidateBody({ method: 'full-factorial', model: '', runs: ' ', centerPoints: '', wholePlots: '', criterion: '', seed: '' })).toEqual({ method: 'full-factorial' });
   });
+  it('sends blocks, and random block effects only for an optimal design with blocks', () => {
+    const base = { model: '', runs: '', centerPoints: '', wholePlots: '', criterion: '', seed: '' };
+    expect(candidateBody({ ...base, method: 'full-factorial', blocks: '4', blockEffects: 'random' })).toEqual({ method: 'full-factorial', blocks: 4 });
+    expect(candidateBody({ ...base, method: 'optimal', blocks: '3', blockEffects: 'random' })).toEqual({ method: 'optimal', blocks: 3, blockEffects: 'random' });
+    expect(candidateBody({ ...base, method: 'optimal', blocks: '', blockEffects: 'random' })).toEqual({ method: 'optimal' });
+  });
 });
 
 describe('sorting runs inside a whole plot (what the move check must refuse)', () => {
