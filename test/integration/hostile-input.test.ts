@@ -76,6 +76,8 @@ describe('hostile input on every POST route', () => {
       ['v1/campaigns/[id]/analyses', await load('v1/campaigns/[id]/analyses'), p],
       ['v1/campaigns/[id]/next-trials', await load('v1/campaigns/[id]/next-trials'), p],
       ['v1/campaigns/[id]/suggestions', await load('v1/campaigns/[id]/suggestions'), p],
+      ['v1/jobs', await load('v1/jobs'), {}],
+      ['v1/jobs/[id]/cancel', await load('v1/jobs/[id]/cancel'), { id: 'nope' }],
     ];
     const client = await db();
     trialCount = await client.trial.count();

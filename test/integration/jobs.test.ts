@@ -15,6 +15,9 @@ import { finishers } from '@/server/jobs/kinds';
 import { closePool } from '@/server/jobs/pool';
 import { JobRunner } from '@/server/jobs/runner';
 import { createCampaign } from '@/server/repos/campaigns';
+import { commitDesign, listRuns } from '@/server/repos/runs';
+import { listSuggestions } from '@/server/repos/suggestions';
+import { finishTrial, startTrial } from '@/server/repos/trials';
 import { getJob, type JobView } from '@/server/repos/jobs';
 import { freshDatabase } from './database';
 
@@ -32,20 +35,26 @@ async function waitFor(id: string, done: (j: JobView) => boolean, timeoutMs = 60
 }
 const finished = (j: JobView) => ['done', 'failed', 'cancelled'].includes(j.status);
 
+beforeAll(async () => {
+  await freshDatabase();
+});
+
+afterAll(async () => {
+  await stopJobRunner();
+  await closePool();
+  await closeDb();
+});
+
 describe('job runner (in-process queue)', () => {
   let runner: JobRunner;
 
   beforeAll(async () => {
-    await freshDatabase();
     runner = new JobRunner({ backend: 'local', serverId: 'test-a', concurrency: 1, finishers });
     await runner.start();
   });
 
   afterAll(async () => {
     await runner.stop();
-    await stopJobRunner();
-    await closePool();
-    await closeDb();
   });
 
   it('writes progress with a readable message, then the result', async () => {
@@ -174,5 +183,41 @@ describe('/api/v1/jobs', () => {
     expect(again.status).toBe(409);
     const listed = (await (await listJobsRoute(new Request(`http://x/api/v1/jobs?campaignId=${c.id}`), ctx(''))).json()) as { jobs: { id: string }[] };
     expect(listed.jobs.map((j) => j.id)).toContain(id);
+  });
+
+  it('runs a campaign surrogate batch as a job and stores its proposals when it finishes', async () => {
+    const c = await createCampaign(
+      campaignCreateSchema.parse({
+        name: 'Batch target (invented)',
+        factors: [
+          { name: 'preload', kind: 'continuous', low: 1, high: 5 },
+          { name: 'payload', kind: 'continuous', low: 0, high: 2 },
+        ],
+        responses: [{ name: 'apex_height', unit: 'mm', goal: 'maximize' }],
+        rigs: [{ name: 'Bench A' }],
+      }),
+    );
+    await commitDesign(c.id, { method: 'full-factorial', model: 'interactions', centerPoints: 2, seed: 1 });
+    const now = new Date('2026-11-30T09:00:00Z');
+    for (const [i, run] of (await listRuns(c.id)).entries()) {
+      const { trial } = await startTrial(c.id, { runId: run.id, operator: 'op' }, `key-batch-${i}-xxxx`, 'tester', now);
+      const v = run.values as { preload: number; payload: number };
+      await finishTrial(c.id, trial.id, { observations: { apex_height: 150 + 12 * v.preload - 20 * v.payload + i }, status: 'done', failureReason: '', notes: '' }, 'tester', now);
+    }
+    const before = (await listSuggestions(c.id)).length;
+    const bad = await post({ kind: 'suggestions', campaignId: c.id, input: { response: 'hop_length', count: 2 } });
+    expect(bad.status).toBe(400);
+    expect(((await bad.json()) as { error: { field: string } }).error.field).toBe('input.response');
+    const res = await post({ kind: 'suggestions', campaignId: c.id, input: { response: 'apex_height', strategy: 'improve', count: 2, seed: 3 } });
+    expect(res.status).toBe(202);
+    const { id } = (await res.json()) as { id: string };
+    const end = await waitFor(id, finished);
+    expect(end.status).toBe('done');
+    const result = end.result as { suggestions: { id: string; reason: string }[]; slices: unknown[]; model: { kernel: string } };
+    expect(result.suggestions).toHaveLength(2);
+    expect(result.slices).toHaveLength(2);
+    const stored = await listSuggestions(c.id);
+    expect(stored.length).toBe(before + 2);
+    expect(stored.map((s) => s.id)).toEqual(expect.arrayContaining(result.suggestions.map((s) => s.id)));
   });
 });
