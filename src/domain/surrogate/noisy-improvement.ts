@@ -15,7 +15,7 @@ import { crossCovariance, pointCovariance, type GaussianProcessModel } from './g
 import { choleskyInPlace, solveLower } from './linear-algebra';
 
 /** Joint draws of the noiseless values per acquisition evaluation (common practice, no source). */
-export const NOISY_IMPROVEMENT_SAMPLES = 64;
+export const NOISY_IMPROVEMENT_SAMPLES = 128;
 /**
  * Noise variance, as a share of the response variance, at or below which the noise counts as negligible
  * and plain (log) expected improvement is used: a noise sd under about 3 % of the response sd (common

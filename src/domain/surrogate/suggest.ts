@@ -15,16 +15,19 @@ import { desirability } from '../analysis';
 import { augmentDesign } from '../design';
 import { codePoint, decodePoint, validateSpace, type Factor, type FactorSpace, type Point } from '../factors';
 import { seededRandom, type RandomSource } from '../random';
-import { expectedImprovement, logExpectedImprovement } from './acquisition';
 import { feasibleCoded, latinHypercubeCandidates, perturbations, snapCoded } from './candidates';
 import { feasibilityProbability, fitFeasibility, type FeasibilityModel } from './feasibility';
 import { fitGaussianProcess, leaveOneOutResiduals, pointCovariance, type GaussianProcessModel } from './gaussian-process';
 import { KERNEL_KINDS } from './kernels';
+import { NoisyImprovementState, PenalisedImprovement, PlugInImprovement, type ImprovementState } from './improvement';
+import { NoisyImprovement, noiseIsNegligible, NOISY_IMPROVEMENT_SAMPLES } from './noisy-improvement';
+import { LocalPenalty } from './penalisation';
 import { BelieverPosterior, CandidateVariances, meanStandardised, meansAtObservations, noiseStandardised, predictStandardised } from './posterior';
 import { refineDesignCandidates, sequentialPredictionVariances } from './refine';
 import type { Suggestion, SuggestionRequest, SuggestionResult, SurrogateSummary } from './types';
 
 const STRATEGIES = ['improve', 'explore', 'refine', 'confirm'] as const;
+const BATCH_MODES = ['believer', 'penalised'] as const;
 const MAX_COUNT = 100;
 /** The fit costs O(n³) per likelihood evaluation: beyond this the request would take minutes. */
 export const MAX_FITTED_TRIALS = 1000;
@@ -67,6 +70,9 @@ export function prepareData(request: SuggestionRequest): PreparedData {
   }
   if (request.kernel !== undefined && !KERNEL_KINDS.includes(request.kernel)) {
     throw invalidInput('kernel', `kernel must be one of: ${KERNEL_KINDS.join(', ')}`);
+  }
+  if (request.batch !== undefined && !BATCH_MODES.includes(request.batch)) {
+    throw invalidInput('batch', `batch must be one of: ${BATCH_MODES.join(', ')}`);
   }
   const t = request.feasibilityThreshold;
   if (t !== undefined && !(t >= 0 && t < 1)) throw invalidInput('feasibilityThreshold', 'the feasibility threshold is a probability from 0 up to (not including) 1');
@@ -220,6 +226,10 @@ interface Context {
   /** 1-based trial number (in the request's data) of each observed input. */
   trialNumber: number[];
   rng: RandomSource;
+  /** True when the estimated noise is not negligible: "improve" then uses noisy expected improvement. */
+  noisy: boolean;
+  /** How "improve" builds a batch. */
+  batch: 'believer' | 'penalised';
 }
 
 function probabilityOk(ctx: Pick<Context, 'feasibility'>, coded: ArrayLike<number>): number {
@@ -288,6 +298,7 @@ function buildContext(request: SuggestionRequest, data: PreparedData, model: Gau
   return {
     request, data, model, feasibility, threshold, sign, factors, pool, poolFeasibility, eligible, relaxed: !any,
     replicateOf: Int32Array.from(replicateOf), trialNumber, rng,
+    noisy: !noiseIsNegligible(model), batch: request.batch ?? 'believer',
   };
 }
 
@@ -311,19 +322,36 @@ interface Chosen {
   incumbent?: number;
 }
 
-/** Greedy kriging-believer batch maximising log EI + log P(no failure) over the allowed candidates. */
-function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: CandidateVariances | null, fixed: readonly number[]): Chosen[] {
+/** The start of the "improve" acquisition for this context: plain or noisy EI, believer or penalised batches. */
+function improvementBase(ctx: Context): ImprovementState {
+  const { model, sign, pool, request } = ctx;
+  const inner: ImprovementState = ctx.noisy
+    ? new NoisyImprovementState(new NoisyImprovement(model, sign, pool, request.count, seededRandom((request.seed ?? 1) + 31337)))
+    : new PlugInImprovement(model, sign, pool, request.count, observedIncumbent(ctx));
+  if (ctx.batch !== 'penalised') return inner;
+  // M: the best value the model believes reachable (at least the best at the observed settings), so every ball has a radius ≥ 0.
+  let reachable = observedIncumbent(ctx);
+  for (const c of pool) reachable = Math.max(reachable, sign * meanStandardised(model, c));
+  return new PenalisedImprovement(inner, new LocalPenalty(model, sign, pool, reachable));
+}
+
+/** Best goal-signed posterior mean at the observed settings (standardised units). */
+function observedIncumbent(ctx: Pick<Context, 'model' | 'sign'>): number {
+  const observed = meansAtObservations(ctx.model);
+  let incumbent = -Infinity;
+  for (let i = 0; i < ctx.model.n; i++) incumbent = Math.max(incumbent, ctx.sign * observed[i]!);
+  return incumbent;
+}
+
+/** Greedy batch maximising log acquisition + log P(no failure) over the allowed candidates. */
+function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: ImprovementState, fixed: readonly number[]): Chosen[] {
   const { model, sign, pool } = ctx;
-  const posterior = new BelieverPosterior(model, count);
-  const cv = new CandidateVariances(posterior, pool, count, base ?? undefined);
+  const state = base.fresh();
   const m = pool.length;
-  const goalMean = new Float64Array(m);
-  for (let c = 0; c < m; c++) goalMean[c] = sign * meanStandardised(model, pool[c]!);
   const logP = new Float64Array(m);
   for (let c = 0; c < m; c++) logP[c] = ctx.feasibility ? Math.log(Math.max(ctx.poolFeasibility[c]!, 1e-300)) : 0;
-  const observed = meansAtObservations(model);
-  let incumbent = -Infinity;
-  for (let i = 0; i < model.n; i++) incumbent = Math.max(incumbent, sign * observed[i]!);
+  // The best so far as the reasons state it: the best posterior mean at the observed settings, raised by believed trials.
+  let incumbent = observedIncumbent(ctx);
   const movable = ctx.factors.map((f, k) => (f.kind === 'continuous' && !fixed.includes(k) ? k : -1)).filter((k) => k >= 0);
   const chosenList: Chosen[] = [];
   const chosenCoded: Float64Array[] = [];
@@ -332,7 +360,7 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: C
     const scores = new Float64Array(m).fill(-Infinity);
     for (let c = 0; c < m; c++) {
       if (!allowed[c] || tooClose(pool[c]!, chosenCoded)) continue;
-      scores[c] = logExpectedImprovement(goalMean[c]!, Math.sqrt(cv.variance[c]!), best) + logP[c]!;
+      scores[c] = state.logScore(c) + logP[c]!;
     }
     const ranked = Array.from(scores.keys()).filter((c) => scores[c]! > -Infinity).sort((a, c) => scores[c]! - scores[a]!);
     if (ranked.length === 0) break;
@@ -344,10 +372,7 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: C
         movable,
         pool[start]!,
         scores[start]!,
-        (x) => {
-          const p = probabilityOk(ctx, x);
-          return logExpectedImprovement(sign * meanStandardised(model, x), Math.sqrt(posterior.variance(x)), best) + (ctx.feasibility ? Math.log(Math.max(p, 1e-300)) : 0);
-        },
+        (x) => state.logScoreAt(x) + (ctx.feasibility ? Math.log(Math.max(probabilityOk(ctx, x), 1e-300)) : 0),
         (x) => !tooClose(x, chosenCoded) && feasibleCoded(ctx.data.space, x) !== null && (ctx.relaxed || probabilityOk(ctx, x) >= ctx.threshold),
       );
       if (refined.score > pick.score) pick = { coded: refined.coded, score: refined.score, replicateOf: -1 };
@@ -360,24 +385,35 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: C
       }
     }
     const g = sign * meanStandardised(model, pick.coded);
-    const sd = Math.sqrt(posterior.variance(pick.coded));
     const p = probabilityOk(ctx, pick.coded);
-    const improvement = expectedImprovement(g, sd, best) * model.yScale;
+    const ei = state.improvementAt(pick.coded);
+    const improvement = ei.value * model.yScale;
     chosenList.push({
       coded: pick.coded,
       acquisition: improvement * p,
-      logAcquisition: logExpectedImprovement(g, sd, best) + Math.log(model.yScale) + Math.log(Math.max(p, 1e-300)),
+      logAcquisition: ei.log + Math.log(model.yScale) + Math.log(Math.max(p, 1e-300)),
       feasibility: p,
       replicateOf: pick.replicateOf,
       improvement,
       incumbent: model.yMean + model.yScale * sign * best,
     });
     chosenCoded.push(pick.coded);
-    const added = posterior.add(pick.coded);
-    cv.update(pick.coded, added);
-    incumbent = Math.max(incumbent, g);
+    state.add(pick.coded);
+    if (ctx.batch === 'believer') incumbent = Math.max(incumbent, g);
   }
   return chosenList;
+}
+
+function improvementName(ctx: Pick<Context, 'noisy'>): string {
+  return ctx.noisy ? 'expected improvement (averaged over the noise)' : 'expected improvement';
+}
+
+/** What "improve" used, for the model summary. */
+function improvementSummary(ctx: Context): string {
+  const kind = ctx.noisy
+    ? `noisy expected improvement (${NOISY_IMPROVEMENT_SAMPLES} joint draws of the noiseless values at the observed settings)`
+    : 'log expected improvement over the best posterior mean';
+  return `${kind}; batch by ${ctx.batch === 'penalised' ? 'local penalisation' : ctx.noisy ? 'conditioning on drawn values of the chosen trials' : 'kriging believer'}`;
 }
 
 function describeImprove(ctx: Context, chosen: Chosen, mean: number, sd: number): string {
@@ -392,9 +428,9 @@ function describeImprove(ctx: Context, chosen: Chosen, mean: number, sd: number)
       ? `Replicate of trial ${trial}: noise (sd ${formatNumber(noiseSd)}) outweighs the model's uncertainty here (± ${formatNumber(sd)}), so a repeat is worth more than a new point; predicted ${formatNumber(mean)}.`
       : `Replicate of trial ${trial}: still the most promising setting (${formatNumber(mean)} ± ${formatNumber(sd)}); a repeat firms it up.`;
   } else if (beats) {
-    text = `Predicted ${request.response} ${formatNumber(mean)} ± ${formatNumber(sd)} beats the best so far (${formatNumber(best)}); expected improvement ${formatNumber(chosen.improvement!)}.`;
+    text = `Predicted ${request.response} ${formatNumber(mean)} ± ${formatNumber(sd)} beats the best so far (${formatNumber(best)}); ${improvementName(ctx)} ${formatNumber(chosen.improvement!)}.`;
   } else {
-    text = `Uncertain region (± ${formatNumber(sd)}) that may beat the best ${request.response} so far (${formatNumber(best)}); expected improvement ${formatNumber(chosen.improvement!)}.`;
+    text = `Uncertain region (± ${formatNumber(sd)}) that may beat the best ${request.response} so far (${formatNumber(best)}); ${improvementName(ctx)} ${formatNumber(chosen.improvement!)}.`;
   }
   if (ctx.feasibility) {
     text += ctx.relaxed
@@ -466,7 +502,7 @@ function improveStrategy(ctx: Context): Suggestion[] {
   const costly = hardToChangeIndices(request);
   const grouping = factors.map((f, k) => (f.hardToChange || costly.includes(k) ? k : -1)).filter((k) => k >= 0);
   const current = ctx.data.all.length > 0 ? ctx.data.all[ctx.data.all.length - 1]!.coded : null;
-  const base = new CandidateVariances(new BelieverPosterior(ctx.model, request.count), ctx.pool, request.count);
+  const base = improvementBase(ctx);
   if (costly.length === 0 || current === null) {
     const chosen = groupByLevels(selectImprove(ctx, request.count, ctx.eligible, base, []), grouping, current);
     return chosen.map((c) => toSuggestion(ctx, c, (mean, sd) => describeImprove(ctx, c, mean, sd)));
@@ -476,12 +512,9 @@ function improveStrategy(ctx: Context): Suggestion[] {
   const currentKey = settingKey(current, costly);
   const keyOf = Array.from(ctx.pool, (c) => settingKey(c, costly));
   const bestByKey = new Map<string, number>();
-  const observed = meansAtObservations(ctx.model);
-  let incumbent = -Infinity;
-  for (let i = 0; i < ctx.model.n; i++) incumbent = Math.max(incumbent, ctx.sign * observed[i]!);
-  ctx.pool.forEach((c, i) => {
+  ctx.pool.forEach((_, i) => {
     if (!ctx.eligible[i]) return;
-    const s = logExpectedImprovement(ctx.sign * meanStandardised(ctx.model, c), Math.sqrt(base.variance[i]!), incumbent);
+    const s = base.logScore(i);
     bestByKey.set(keyOf[i]!, Math.max(bestByKey.get(keyOf[i]!) ?? -Infinity, s));
   });
   // Whole-batch moves to another level make sense for levels (categorical, discrete), not for continuous values.
@@ -699,6 +732,7 @@ export function suggestTrials(input: SuggestionRequest): SuggestionResult {
   const strategy = request.strategy ?? 'improve';
   const run = { improve: improveStrategy, explore: exploreStrategy, confirm: confirmStrategy, refine: refineStrategy }[strategy];
   const summary = summarise(model, request.factors, ctx.trialNumber);
+  if (strategy === 'improve') summary.acquisition = improvementSummary(ctx);
   if (combined) summary.desirabilityOf = input.responses!.map((r) => r.name);
   return { suggestions: run(ctx), model: summary };
 }

@@ -28,6 +28,11 @@ export interface SuggestionRequest {
   disallowed?: DisallowedCombination[];
   kernel?: KernelKind;
   /**
+   * How "improve" builds a batch: "believer" (default) conditions the model on each chosen trial before the
+   * next pick; "penalised" keeps the acquisition and lowers it around the chosen trials (local penalisation).
+   */
+  batch?: 'believer' | 'penalised';
+  /**
    * Several responses at once: each trial's overall desirability (Derringer & Suich) of these responses
    * becomes the modelled response, maximised; `response` then only labels it and `goal` is ignored.
    */
@@ -71,6 +76,8 @@ export interface SurrogateSummary {
   };
   /** Set when several responses were combined: the modelled response is their overall desirability. */
   desirabilityOf?: string[];
+  /** For "improve": the acquisition and batch method used, in words. */
+  acquisition?: string;
 }
 
 export interface SuggestionResult {

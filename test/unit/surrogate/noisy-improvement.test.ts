@@ -68,7 +68,7 @@ describe('noisy expected improvement (Letham et al. 2019) against brute-force Mo
     }
   });
 
-  it('the default 64 stratified draws stay within 20 % of the reference for every seed tried', () => {
+  it('the default number of stratified draws stays within 20 % of the reference for every seed tried', () => {
     const ref = bruteForce(0.35, 1, 200_000, 3);
     for (let seed = 1; seed <= 8; seed++) {
       const ours = noisyExpectedImprovement(model, [[0.35]], 'maximize', seededRandom(seed))[0]!;
