@@ -289,8 +289,9 @@ export function GroupedPoints({ title, groups, xLabel, yLabel }: { title: string
     .padding(0.3);
   const y = scaleLinear().domain(extent([0, ...groups.flatMap((g) => g.values)])).range([H - M.bottom, M.top]).nice();
   const bw = x.bandwidth();
-  // Label every group when they fit, else every k-th.
+  // Label every group when they fit, else every k-th; long labels cut to the room each one has.
   const every = Math.max(1, Math.ceil(groups.length / 14));
+  const room = Math.max(3, Math.floor((bw + x.step() * x.paddingInner() + (every - 1) * x.step()) / 6));
   return (
     <figure className="chart">
       <svg viewBox={`0 0 ${W} ${H}`} role="img" aria-label={title}>
@@ -309,7 +310,7 @@ export function GroupedPoints({ title, groups, xLabel, yLabel }: { title: string
           {groups.map((g, i) =>
             i % every === 0 ? (
               <text key={`x${g.label}`} x={x(g.label)! + bw / 2} y={H - M.bottom + 13} textAnchor="middle">
-                {g.label.length > 8 ? `${g.label.slice(0, 7)}…` : g.label}
+                {g.label.length > room ? `${g.label.slice(0, room - 1)}…` : g.label}
               </text>
             ) : null,
           )}
