@@ -94,4 +94,34 @@ describe('split-plot REML with Kenward–Roger degrees of freedom (Kenward & Rog
     const constant = data.map((d) => ({ ...d, y: 7 }));
     expect(() => splitPlotAnalysis({ data: constant, response: 'y', terms: ['A', 'B'], wholePlot: 'bed' })).toThrow(/exact fit/);
   });
+
+  it('tests a three-level whole-plot factor (two numerator df) with the classical F on 6 df', () => {
+    // 9 beds, surface at 3 levels (3 beds each), gain B at 3 levels in every bed: surface on
+    // 9 − 3 = 6 whole-plot df; B and surface*B on 27 − 6 parameters − 6 = 15 subplot df.
+    const shift = [0.5, -0.7, 0.2, 0.9, -0.4, -0.1, 0.3, -0.6, 0.4];
+    const rows = Array.from({ length: 27 }, (_, i) => {
+      const bed = Math.floor(i / 3);
+      const surface = ['turf', 'glass', 'soil'][bed % 3]!;
+      const B = (i % 3) - 1;
+      return { bed: `b${bed}`, surface, B, y: 5 + (surface === 'glass' ? 1.2 : surface === 'soil' ? -0.4 : 0) + 0.8 * B + shift[bed]! + 0.3 * Math.sin(5.1 * i) };
+    });
+    const sp = splitPlotAnalysis({ data: rows, response: 'y', terms: ['surface', 'B', 'surface*B'], wholePlot: 'bed' });
+    const means = Array.from({ length: 9 }, (_, w) => {
+      const r = rows.filter((d) => d.bed === `b${w}`);
+      return { surface: r[0]!.surface, y: r.reduce((s, d) => s + d.y, 0) / 3 };
+    });
+    const whole = analyze({ data: means, response: 'y', terms: ['surface'] });
+    const sub = analyze({ data: rows, response: 'y', terms: ['bed', 'B', 'surface*B'] });
+    const tS = sp.tests.find((t) => t.source === 'surface')!;
+    expect(tS.df).toBe(2);
+    expect(tS.stratum).toBe('whole plot');
+    expect(tS.denominatorDf).toBeCloseTo(6, 6);
+    expect(Math.abs(tS.f - whole.anova.find((r) => r.source === 'surface')!.f!) / tS.f).toBeLessThan(1e-9);
+    const tSB = sp.tests.find((t) => t.source === 'surface*B')!;
+    expect(tSB.df).toBe(2);
+    expect(tSB.stratum).toBe('subplot');
+    expect(sub.residualDf).toBe(15);
+    expect(tSB.denominatorDf).toBeCloseTo(15, 6);
+    expect(Math.abs(tSB.f - sub.anova.find((r) => r.source === 'surface*B')!.f!) / tSB.f).toBeLessThan(1e-9);
+  });
 });
