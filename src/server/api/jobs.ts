@@ -6,7 +6,7 @@
 import { z } from 'zod';
 import { startedJobRunner } from '@/server/jobs';
 import { JOB_KINDS, prepareJob } from '@/server/jobs/kinds';
-import { getJob, listJobs, type JobView } from '@/server/repos/jobs';
+import { getJob, listJobs, requestCancel, type JobView } from '@/server/repos/jobs';
 import { jsonResponse, readJson } from './http';
 import { parseWith } from './validation';
 
@@ -55,6 +55,9 @@ export const listJobsHandler = async (req: Request) => {
 };
 
 export const cancelJobHandler = async (req: Request, p: Record<string, string>) => {
-  const runner = await startedJobRunner();
-  return publicJob(await runner.cancel(parseWith(id, p.id, 'id'), actorOf(req)));
+  // The row's flag is set here, in the route's own modules (its refusals map to 4xx here); the runner
+  // is then told so a job running on this server stops without waiting for its next poll.
+  const view = await requestCancel(parseWith(id, p.id, 'id'), actorOf(req));
+  (await startedJobRunner()).interrupt(view.id);
+  return publicJob(view);
 };

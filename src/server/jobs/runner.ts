@@ -156,8 +156,16 @@ export class JobRunner {
   /** Ask a job to stop (any server's job: the flag is in its row). */
   async cancel(id: string, actor = 'local'): Promise<JobView> {
     const view = await requestCancel(id, actor);
-    this.running.get(id)?.cancel();
+    this.interrupt(id);
     return view;
+  }
+
+  /**
+   * Stop a job this runner is running now, without waiting for the next poll of its row (after the
+   * caller has set the row's flag with requestCancel).
+   */
+  interrupt(id: string): void {
+    this.running.get(id)?.cancel();
   }
 
   /** Resolves when this runner has nothing queued or running (tests). */
@@ -279,7 +287,11 @@ export class JobRunner {
 }
 
 function jobError(e: unknown): JobError {
-  if (isDomainError(e)) return { code: e.code, message: e.message, field: e.field ?? null };
+  // By name too: under the Next.js server the runner's modules may be another copy than the route's.
+  if (isDomainError(e) || (e instanceof Error && e.name === 'DomainError')) {
+    const d = e as Error & { code: string; field?: string };
+    return { code: d.code, message: d.message, field: d.field ?? null };
+  }
   console.error('[saltus] job failed', e);
   return { code: 'internal', message: 'the computation failed unexpectedly; the server log has the details', field: null };
 }
