@@ -103,14 +103,11 @@ describe('standard rig readings on a real database', () => {
     expect(await trialCount()).toBe(1);
   });
 
-  it('refuses more hops than fit in the trial time, and warns when it is close', async () => {
+  it('questions more hops than fit in the trial time, naming the field, and stores the entry', async () => {
     // 2 min trial; a 0.20 m apex is about 0.40 s in the air per hop (common practice, no source).
-    const refused = await rejection(logTrial(campaignId, entry(runIds[1]!, { apex: 20, hops_completed: 700 }), 'std-key-0004', 'tester', NOW));
-    expect(refused.field).toBe('observations.hops_completed');
-    expect(refused.message).toMatch(/700 hops to 20 cm take at least 28\d\.\d s in the air, but the trial lasted 120\.0 s/);
-    expect(await trialCount()).toBe(1);
-    const warned = await logTrial(campaignId, entry(runIds[1]!, { apex: 20, hops_completed: 350 }), 'std-key-0004', 'tester', NOW);
-    expect(warned.warnings.map((w) => w.field)).toContain('observations.hops_completed');
+    const warned = await logTrial(campaignId, entry(runIds[1]!, { apex: 20, hops_completed: 700 }), 'std-key-0004', 'tester', NOW);
+    const hops = warned.warnings.find((w) => w.field === 'observations.hops_completed');
+    expect(hops?.message).toMatch(/700 hops to 20 cm take at least 28\d\.\d s in the air, but the trial lasted 120\.0 s/);
     expect(await trialCount()).toBe(2);
   });
 

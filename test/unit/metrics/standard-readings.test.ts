@@ -81,14 +81,10 @@ describe('hops against the trial time', () => {
   it('accepts hops that fit', () => {
     expect(checkReadings({ ...base, hopsCompleted: 20 }, ctx)).toEqual({ errors: [], warnings: [] });
   });
-  it('questions hops that fit only if the apex was the highest', () => {
-    const c = checkReadings({ ...base, hopsCompleted: 30 }, ctx);
+  it('questions more hops than fit in the trial time, naming the most that fit (a warning: the start may have been pressed late)', () => {
+    const c = checkReadings({ ...base, hopsCompleted: 60 }, ctx);
     expect(c.errors).toEqual([]);
     expect(c.warnings[0]!.field).toBe('hopsCompleted');
-  });
-  it('refuses hops needing more than twice the trial time in the air', () => {
-    const c = checkReadings({ ...base, hopsCompleted: 60 }, ctx);
-    expect(c.errors[0]!.field).toBe('hopsCompleted');
-    expect(c.errors[0]!.message).toMatch(/at most 24 such hops/);
+    expect(c.warnings[0]!.message).toMatch(/at most 24 such hops/);
   });
 });
