@@ -27,13 +27,17 @@ async function timeCase(c: BenchCase) {
   const prepared = c.setup ? await c.setup() : undefined;
   for (let i = 0; i < (c.warmup ?? 1); i++) await c.run(prepared);
   const times: number[] = [];
+  const cpu: number[] = [];
   let last: unknown;
   for (let i = 0; i < (c.repeats ?? 5); i++) {
+    const c0 = process.cpuUsage();
     const t0 = performance.now();
     last = await c.run(prepared);
     times.push((performance.now() - t0) / 1000);
+    const dc = process.cpuUsage(c0);
+    cpu.push((dc.user + dc.system) / 1e6);
   }
-  return { seconds: median(times), extra: c.report ? c.report(prepared, last) : {} };
+  return { seconds: median(times), cpuSeconds: median(cpu), extra: c.report ? c.report(prepared, last) : {} };
 }
 
 function load(): string {
@@ -81,11 +85,13 @@ async function main() {
     const mod = (await import(pathToFileURL(path.join(here, 'cases', f)).href)) as { cases: BenchCase[] };
     for (const c of mod.cases) {
       if (filter && !c.name.includes(filter)) continue;
-      const { seconds, extra } = await timeCase(c);
+      const { seconds, cpuSeconds, extra } = await timeCase(c);
       let line = `${c.name.padEnd(58)} ${fmt(seconds).padStart(10)}`;
       if (c.target) line += `  target ${c.target}`;
       if (c.targetSeconds !== undefined) line += seconds <= c.targetSeconds ? ' [met]' : ' [MISSED]';
-      line += `  load=${load()}`;
+      // Processor time of this process (all its threads, the garbage collector's included): steadier
+      // than wall time when other work shares the machine.
+      line += `  cpu=${fmt(cpuSeconds)}  load=${load()}`;
       for (const [k, v] of Object.entries(extra)) line += `  ${k}=${typeof v === 'number' ? Number(v.toPrecision(6)) : v}`;
       if (c.reference) {
         const ref = runReference(c.reference);
@@ -95,7 +101,7 @@ async function main() {
           const ratio = seconds / rs;
           line += `\n    ${c.reference.label}: ${fmt(rs)}  ratio ours/reference = ${ratio.toFixed(2)}`;
           if (c.reference.maxRatio !== undefined) line += ratio <= c.reference.maxRatio ? ` [met ≤ ${c.reference.maxRatio}]` : ` [MISSED ≤ ${c.reference.maxRatio}]`;
-          for (const [k, v] of Object.entries(ref)) if (k !== 'seconds') line += `  ${k}=${String(v)}`;
+          for (const [k, v] of Object.entries(ref)) if (k !== 'seconds') line += `  ${k}=${typeof v === 'number' ? Number(v.toPrecision(6)) : String(v)}`;
           for (const other of c.reference.compare ?? []) {
             const os = Number(ref[other.key]);
             if (!(os > 0)) continue;

@@ -29,6 +29,13 @@ function covarianceRows(lm: LinearModelFit): number[][] {
   return Array.from({ length: r }, (_, i) => Array.from({ length: r }, (_, j) => v[i * r + j]! * lm.meanSquaredError));
 }
 
+/** A typed array as a plain array, by an indexed loop (several times faster than Array.from's iterator for 100,000 values). */
+function plainArray(xs: Float64Array): number[] {
+  const out = new Array<number>(xs.length);
+  for (let i = 0; i < xs.length; i++) out[i] = xs[i]!;
+  return out;
+}
+
 /** Result fields shared by every gaussian analysis, from a linear model fit. */
 export function resultOfLinearFit(request: AnalysisRequest, lm: LinearModelFit): AnalysisResult {
   const { frame } = lm;
@@ -52,9 +59,9 @@ export function resultOfLinearFit(request: AnalysisRequest, lm: LinearModelFit):
     ...(lm.lackOfFit ? { lackOfFit: lm.lackOfFit } : {}),
     ...(lm.residualDf > 0 ? { covariance: covarianceRows(lm) } : {}),
     ...diagnosticFields(request, lm),
-    fitted: Array.from(lm.fit.fitted),
-    residuals: Array.from(lm.fit.residuals),
-    observed: Array.from(frame.y),
+    fitted: plainArray(lm.fit.fitted),
+    residuals: plainArray(lm.fit.residuals),
+    observed: plainArray(frame.y),
   };
 }
 
