@@ -4,6 +4,8 @@
  */
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== 'nodejs') return;
-  const { startedJobRunner } = await import('./server/jobs');
+  const [{ startedJobRunner }, { pool }] = await Promise.all([import('./server/jobs'), import('./server/jobs/pool')]);
+  // Load one worker thread now, so the first computation does not wait for it.
+  pool();
   startedJobRunner().catch((e: unknown) => console.error('[saltus] the job runner did not start; it will try again on the next job', e));
 }

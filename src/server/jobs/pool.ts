@@ -19,7 +19,7 @@ export function workerFile(env: Record<string, string | undefined> = process.env
   return path.join(path.resolve(/*turbopackIgnore: true*/ env.SALTUS_ROOT ?? process.cwd()), 'src', 'server', 'jobs', 'worker.mjs');
 }
 
-/** Threads: SALTUS_JOB_THREADS, else one fewer than the cores (at least one) so requests keep a core. */
+/** Jobs at once: SALTUS_JOB_THREADS, else one fewer than the cores (at least one) so requests keep a core. */
 export function poolThreads(env: Record<string, string | undefined> = process.env): number {
   const set = Number(env.SALTUS_JOB_THREADS);
   if (Number.isInteger(set) && set >= 1 && set <= 64) return set;
@@ -28,12 +28,17 @@ export function poolThreads(env: Record<string, string | undefined> = process.en
 
 const globalForPool = globalThis as unknown as { saltusPool?: Piscina };
 
+/**
+ * The pool has one thread more than the job runner runs jobs at once (`poolThreads()`), so a request
+ * that waits for its computation (POST /api/v1/designs, …) never queues behind long jobs.
+ */
 export function pool(): Piscina {
   globalForPool.saltusPool ??= new Piscina({
     filename: workerFile(),
-    minThreads: 0,
-    maxThreads: poolThreads(),
-    // A thread takes about a second to load the domain code; keep idle ones for ten minutes.
+    // One thread stays loaded (a thread takes about a second to load the domain code); others that
+    // were started live ten minutes idle.
+    minThreads: 1,
+    maxThreads: poolThreads() + 1,
     idleTimeout: 10 * 60_000,
   });
   return globalForPool.saltusPool;
