@@ -1,24 +1,33 @@
 /**
- * `npm run load -- [baseUrl] [clients] [seconds] [--token <token>]`: a bounded logging load on a running
- * Saltus, loopback only. The API token (role operator or above) comes from `--token` or the environment
- * variable SALTUS_TOKEN and is sent as `Authorization: Bearer <token>` on every request. N concurrent clients each log trials through POST /api/v1/campaigns/{id}/trials/log (one
- * idempotency key per entry) against a campaign of its own, for a fixed time; then every
- * acknowledged key is checked to be stored exactly once. Prints throughput and latency percentiles.
+ * `npm run load -- [baseUrl] [clients] [seconds] [--token <token>] [--think <ms>]`: a bounded logging load
+ * on a running Saltus, loopback only. N concurrent clients each log trials through
+ * POST /api/v1/campaigns/{id}/trials/log (one idempotency key per entry) against a campaign of its own,
+ * for a fixed time; then every acknowledged key is checked to be stored exactly once. Prints throughput
+ * and latency percentiles.
+ *
+ * Without --think each client sends its next entry as soon as the last is answered (a closed loop: the
+ * mean latency is then clients ÷ throughput); with --think each client pauses that long between entries,
+ * like an operator between trials. The API token (role operator or above) comes from --token or the
+ * environment variable SALTUS_TOKEN and is sent as `Authorization: Bearer <token>` on every request.
  */
 import { randomUUID } from 'node:crypto';
 
 const args = process.argv.slice(2);
 let token = process.env.SALTUS_TOKEN ?? '';
+let thinkMs = 0;
 const positional: string[] = [];
 for (let i = 0; i < args.length; i++) {
   const a = args[i]!;
   if (a === '--token') token = args[++i] ?? '';
   else if (a.startsWith('--token=')) token = a.slice('--token='.length);
+  else if (a === '--think') thinkMs = Number(args[++i] ?? 0);
+  else if (a.startsWith('--think=')) thinkMs = Number(a.slice('--think='.length));
   else positional.push(a);
 }
 const base = positional[0] ?? 'http://127.0.0.1:3000';
 const clients = Math.max(1, Math.min(Number(positional[1] ?? 50), 200));
 const seconds = Math.max(1, Math.min(Number(positional[2] ?? 60), 300));
+thinkMs = Math.max(0, Math.min(Number.isFinite(thinkMs) ? thinkMs : 0, 60_000));
 const auth: Record<string, string> = token ? { authorization: `Bearer ${token}` } : {};
 
 const host = new URL(base).hostname;
@@ -72,6 +81,7 @@ async function main() {
         if (r.status === 201 || r.status === 200) acknowledged.add(key);
         else errors++;
         i++;
+        if (thinkMs > 0) await new Promise((resolve) => setTimeout(resolve, thinkMs));
       }
     }),
   );
@@ -83,7 +93,7 @@ async function main() {
   for (const t of trials.trials) if (t.idempotencyKey) stored.set(t.idempotencyKey, (stored.get(t.idempotencyKey) ?? 0) + 1);
   const missing = [...acknowledged].filter((k) => stored.get(k) !== 1).length;
   console.log(
-    `load: ${clients} clients for ${elapsed.toFixed(1)} s: ${latencies.length} requests, ${(latencies.length / elapsed).toFixed(1)} req/s; ` +
+    `load: ${clients} clients${thinkMs ? ` (think ${thinkMs} ms)` : ''} for ${elapsed.toFixed(1)} s: ${latencies.length} requests, ${(latencies.length / elapsed).toFixed(1)} req/s; ` +
       `latency p50 ${q(0.5).toFixed(1)} ms, p95 ${q(0.95).toFixed(1)} ms, p99 ${q(0.99).toFixed(1)} ms; errors ${errors}; ` +
       `acknowledged ${acknowledged.size}, stored exactly once ${acknowledged.size - missing}, missing or duplicated ${missing}`,
   );
