@@ -7,6 +7,7 @@
  */
 // Yates (1937), The Design and Analysis of Factorial Experiments (confounding with blocks); Sun, Wu & Chen (1997), Technometrics 39:298-307 (choice of block generators)
 import { DomainError } from '../errors';
+import { randomInt, seededRandom } from '../random';
 import { definingWords, popcount, type Generator } from './fractional-factorial';
 
 /** An effect over the blocking columns: one coefficient in 0..s−1 per column (first non-zero one is 1). */
@@ -20,10 +21,10 @@ export interface BlockingProblem {
   /** Blocks = s^q. */
   q: number;
   /**
-   * Lengths of the factor words an effect over the columns stands for: its support in a full
-   * factorial, or the lengths of every word of its alias set in a two-level fraction.
+   * Number of factor words of each length (index 0..maxLength) an effect over the columns stands
+   * for: one word, its support, in a full factorial; every word of its alias set in a fraction.
    */
-  wordLengths(v: EffectVector): number[];
+  wordCounts(v: EffectVector): readonly number[];
   /** Longest word length counted in the comparison of two choices (the number of factors). */
   maxLength: number;
   /** Nodes the search may visit (default 200 000); it keeps the best choice found. */
@@ -100,23 +101,108 @@ function candidates(s: number, m: number): number[][] {
 }
 
 /**
- * Block generators with the least confounding: a depth-first search over sets of q independent
- * effects that compares, in order, the number of confounded words of length 1 (main effects), 2
- * (two-factor interactions), 3 and so on, and keeps the smallest (the blocking analogue of minimum
- * aberration). Candidates of high order come first, so good choices are met early; the search is
- * exhaustive for the usual sizes and keeps the best found within its budget otherwise.
+ * Block generators with the least confounding. Choices are compared by the number of confounded
+ * words of length 1 (main effects), then 2 (two-factor interactions), 3 and so on, the smallest
+ * winning (the blocking analogue of minimum aberration). Small problems (up to 64 candidate
+ * effects, up to 8 blocks) are searched exhaustively; every problem also gets a local search over the generator
+ * matrix, and the better of the two is kept.
  */
 export function chooseBlockGenerators(problem: BlockingProblem): BlockingChoice | null {
-  const { s, m, q, maxLength } = problem;
+  const { s, m, q } = problem;
   if (q < 1 || q > m) return null;
+  const exhaustive = s ** m <= 64 && q <= 3 ? depthFirstBlocking(problem) : null;
+  const local = localSearchBlocking(problem);
+  if (!exhaustive) return local;
+  if (!local) return exhaustive;
+  return compareCounts(local.counts, exhaustive.counts) < 0 ? local : exhaustive;
+}
+
+/**
+ * Local search over the q × m generator matrix: column j says which generators contain factor j
+ * (with which power when s > 2). Each sweep tries every other column for every factor and keeps a
+ * change that lowers the count vector; seeded restarts from balanced and random matrices.
+ */
+function localSearchBlocking(problem: BlockingProblem): BlockingChoice | null {
+  const { s, m, q, maxLength } = problem;
+  const columns = s ** q;
+  const digits = (c: number) => Array.from({ length: q }, (_, i) => Math.floor(c / s ** i) % s);
+  const colDigits = Array.from({ length: columns }, (_, c) => digits(c));
+  // Normalised non-zero combinations u of the generators: each gives one confounded effect.
+  const combos = colDigits.filter((u) => u.find((x) => x !== 0) === 1);
+  let work = 0;
+  const evaluate = (cols: readonly number[]): BlockingChoice => {
+    const counts = new Array<number>(maxLength + 1).fill(0);
+    const confounded: number[][] = [];
+    for (const u of combos) {
+      const v = cols.map((c) => {
+        const d = colDigits[c]!;
+        let x = 0;
+        for (let i = 0; i < q; i++) x += u[i]! * d[i]!;
+        return x % s;
+      });
+      if (v.every((x) => x === 0)) {
+        // Dependent generators: fewer blocks than asked; the worst possible choice.
+        counts[0]!++;
+        continue;
+      }
+      const nv = normalise(v, s);
+      confounded.push(nv);
+      const wc = problem.wordCounts(nv);
+      work += m + wc.length;
+      for (let l = 0; l < wc.length; l++) counts[Math.min(l, maxLength)]! += wc[l]!;
+    }
+    const generators = Array.from({ length: q }, (_, i) => normalise(cols.map((c) => colDigits[c]![i]!), s));
+    return { generators, confounded, counts };
+  };
+  const rng = seededRandom(20_011);
+  const nonZero = Array.from({ length: columns - 1 }, (_, c) => c + 1);
+  // Balanced start: columns of many non-zero digits first, cycling (a simplex-like spread).
+  const weight = (c: number) => colDigits[c]!.filter((x) => x !== 0).length;
+  const balanced = nonZero.slice().sort((a, b) => weight(b) - weight(a) || a - b);
+  const starts: number[][] = [Array.from({ length: m }, (_, j) => balanced[j % balanced.length]!)];
+  const identityFirst = Array.from({ length: m }, (_, j) => (j < q ? s ** j : balanced[(j - q) % balanced.length]!));
+  starts.push(identityFirst);
+  for (let r = 0; r < 6; r++) starts.push(Array.from({ length: m }, () => nonZero[randomInt(rng, nonZero.length)]!));
+  let best: BlockingChoice | null = null;
+  // Work bound: stop sweeping after about 10^7 coefficient and word-count operations.
+  const limit = 1e7;
+  for (const start of starts) {
+    const cols = start.slice();
+    let current = evaluate(cols);
+    let improved = true;
+    while (improved && work < limit) {
+      improved = false;
+      for (let j = 0; j < m && work < limit; j++) {
+        const keep = cols[j]!;
+        let chosen = keep;
+        for (let c = 0; c < columns; c++) {
+          if (c === keep) continue;
+          cols[j] = c;
+          const trial = evaluate(cols);
+          if (compareCounts(trial.counts, current.counts) < 0) {
+            current = trial;
+            chosen = c;
+            improved = true;
+          }
+        }
+        cols[j] = chosen;
+      }
+    }
+    if (current.counts[0] === 0 && (!best || compareCounts(current.counts, best.counts) < 0)) best = current;
+  }
+  return best;
+}
+
+function depthFirstBlocking(problem: BlockingProblem): BlockingChoice | null {
+  const { s, m, q, maxLength } = problem;
   const budget = problem.budget ?? 200_000;
   const cands = candidates(s, m).map((v) => {
-    const lengths = problem.wordLengths(v);
-    return { v, lengths, shortest: Math.min(...lengths) };
+    const wc = problem.wordCounts(v);
+    return { v, shortest: wc.findIndex((c, l) => l > 0 && c > 0) };
   });
   cands.sort((a, b) => b.shortest - a.shortest || key(a.v, s) - key(b.v, s));
-  const countsOf = (lengths: readonly number[], into: number[]) => {
-    for (const l of lengths) into[Math.min(l, maxLength)]!++;
+  const countsOf = (wc: readonly number[], into: number[]) => {
+    for (let l = 0; l < wc.length; l++) into[Math.min(l, maxLength)]! += wc[l]!;
   };
   let best: BlockingChoice | null = null;
   let nodes = 0;
@@ -136,7 +222,7 @@ export function chooseBlockGenerators(problem: BlockingProblem): BlockingChoice 
       // New confounded effects: g + u for every u of the span so far (u = 0 included).
       const added = span.map((u) => normalise(addScaled(u, g, 1, s), s));
       const next = counts.slice();
-      for (const v of added) countsOf(problem.wordLengths(v), next);
+      for (const v of added) countsOf(problem.wordCounts(v), next);
       if (best && compareCounts(next, (best as BlockingChoice).counts) >= 0) continue;
       const nextSpan: number[][] = [];
       for (const u of span) for (let a = 0; a < s; a++) nextSpan.push(addScaled(u, g, a, s));
@@ -248,17 +334,25 @@ export function blockTwoLevel(
   const words = definingWords(fraction).map((w) => w.mask);
   const maskOf = (v: EffectVector) => v.reduce((m, c, j) => (c ? m | (1 << base[j]!) : m), 0);
   const aliasSet = (mask: number) => [mask, ...words.map((w) => w ^ mask)].sort((a, b) => popcount(a) - popcount(b) || a - b);
-  const choice = chooseBlockGenerators({
-    s: 2,
-    m: base.length,
-    q,
-    maxLength: k,
-    wordLengths: (v) => aliasSet(maskOf(v)).map(popcount),
-  });
+  // Word counts by length of each alias set, computed once per set (2^k word operations in all).
+  const memo = new Map<number, number[]>();
+  const wordCounts = (v: EffectVector) => {
+    const mask = maskOf(v);
+    let counts = memo.get(mask);
+    if (!counts) {
+      counts = new Array<number>(k + 1).fill(0);
+      counts[popcount(mask)]!++;
+      for (const w of words) counts[popcount(w ^ mask)]!++;
+      memo.set(mask, counts);
+    }
+    return counts;
+  };
+  const choice = chooseBlockGenerators({ s: 2, m: base.length, q, maxLength: k, wordCounts });
+  // Each confounded alias set by its shortest word, with the other words of up to three factors.
   const confounded = () =>
     (choice?.confounded ?? []).map((v) => {
-      const [effect, ...aliases] = aliasSet(maskOf(v)).map((m) => wordName(m, names));
-      return { effect: effect!, aliases };
+      const [first, ...rest] = aliasSet(maskOf(v));
+      return { effect: wordName(first!, names), aliases: rest.filter((m) => popcount(m) <= 3).map((m) => wordName(m, names)) };
     });
   assertUsableBlocking(choice, blocks, runs, protectedLength, () => confounded().flatMap((c) => [c.effect, ...c.aliases]), hint);
   return {
@@ -301,7 +395,12 @@ export function blockFullFactorial(
   }
   const { s, q, columns } = pick;
   const colNames = columns.map((j) => names[j]!);
-  const choice = chooseBlockGenerators({ s, m: columns.length, q, maxLength: levelLists.length, wordLengths: (v) => [v.filter((c) => c !== 0).length] });
+  const wordCounts = (v: EffectVector) => {
+    const counts = new Array<number>(levelLists.length + 1).fill(0);
+    counts[v.filter((c) => c !== 0).length]!++;
+    return counts;
+  };
+  const choice = chooseBlockGenerators({ s, m: columns.length, q, maxLength: levelLists.length, wordCounts });
   const labels = () => (choice?.confounded ?? []).map((v) => effectLabel(v, colNames));
   assertUsableBlocking(choice, blocks, runs, protectedLength, labels);
   return {

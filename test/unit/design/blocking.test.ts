@@ -263,10 +263,23 @@ describe('block generator search', () => {
   it('finds the least confounding for every 2^m in 2^q blocks up to m = 7 (exhaustive check)', () => {
     for (let m = 2; m <= 7; m++) {
       for (let q = 1; q < m && q <= (m <= 6 ? 3 : 2); q++) {
-        const choice = chooseBlockGenerators({ s: 2, m, q, maxLength: m, wordLengths: (v) => [v.filter((c) => c).length] });
+        const wordCounts = (v: number[]) => {
+          const c = new Array<number>(m + 1).fill(0);
+          c[v.filter((x) => x).length]!++;
+          return c;
+        };
+        const choice = chooseBlockGenerators({ s: 2, m, q, maxLength: m, wordCounts });
         expect(choice!.counts).toEqual(bruteForce(m, q));
       }
     }
+  });
+
+  it('large designs: 2^8 in 32 blocks keeps main effects clear, 2^8 in 16 and 2^10 in 16 blocks keep two-factor interactions clear', () => {
+    const names = (k: number) => Array.from({ length: k }, (_, i) => `x${i + 1}`);
+    const orders = (k: number, blocks: number, protect: number) => blockTwoLevel(k, [], blocks, protect, names(k)).confounded.map((c) => c.effect.split('*').length);
+    expect(Math.min(...orders(8, 32, 1))).toBeGreaterThanOrEqual(2);
+    expect(Math.min(...orders(8, 16, 2))).toBeGreaterThanOrEqual(3);
+    expect(Math.min(...orders(10, 16, 2))).toBeGreaterThanOrEqual(3);
   });
 
   it('powerOf and the two-level entry point agree on what can be blocked', () => {
