@@ -1,11 +1,27 @@
 /*
  * Service worker of the rig pages: keeps the rig page shell and the app's static files so that the
- * page opens at the bench without network. Registered only by the rig page (scope /campaigns/).
+ * page opens at the bench without network. Registered only by the rig page (scope /campaigns/), as
+ * /rig-sw.js?build=<build id>: each deploy is a new worker with its own cache, and when it activates
+ * it deletes the caches of earlier builds (their pages point at static files that no longer exist)
+ * and takes over the open pages. The log entries waiting to be sent live in the page's IndexedDB
+ * outbox, never in these caches, so the eviction cannot lose one.
  * Rig page documents: network first, the last copy when offline. Hashed static files (/_next/static/):
- * cache first. Everything else, and every non-GET request, goes to the network untouched (the log
- * entries wait in the page's IndexedDB queue, not here).
+ * cache first. Everything else, and every non-GET request, goes to the network untouched.
  */
-const CACHE = 'saltus-rig-shell-v1';
+const CACHE_PREFIX = 'saltus-rig-shell-';
+
+/** The cache of one build: the build id from the worker's URL, letters, digits, . _ - only. */
+function cacheNameFor(scriptUrl) {
+  const build = (new URL(scriptUrl).searchParams.get('build') || 'dev').replace(/[^A-Za-z0-9._-]/g, '').slice(0, 64) || 'dev';
+  return CACHE_PREFIX + build;
+}
+
+/** Caches to delete when `current` activates: every rig shell cache of another build, nothing else. */
+function staleCaches(names, current) {
+  return names.filter((name) => name.startsWith(CACHE_PREFIX) && name !== current);
+}
+
+const CACHE = cacheNameFor(self.location.href);
 const RIG_PAGE = /^\/campaigns\/[^/]+\/rigs\/[^/]+\/?$/;
 
 self.addEventListener('install', () => {
@@ -15,9 +31,7 @@ self.addEventListener('install', () => {
 self.addEventListener('activate', (event) => {
   event.waitUntil(
     (async () => {
-      for (const name of await caches.keys()) {
-        if (name.startsWith('saltus-rig-shell-') && name !== CACHE) await caches.delete(name);
-      }
+      for (const name of staleCaches(await caches.keys(), CACHE)) await caches.delete(name);
       await self.clients.claim();
     })(),
   );

@@ -29,6 +29,8 @@ export interface RigLogProps {
   responses: { name: string; unit?: string; goal: string }[];
   robots: { id: string; name: string; massGrams: number }[];
   queue: QueueItem[];
+  /** Build this page was rendered by; keys the service worker's cache and spots a newer deploy. */
+  buildId: string;
 }
 
 interface ActiveTrial {
@@ -71,7 +73,25 @@ function ReadingInput({ field, value, invalid, onChange }: { field: ReadingField
   );
 }
 
-export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }: RigLogProps) {
+/** How often an open rig page asks whether a newer version was deployed, ms. */
+const VERSION_CHECK_MS = 10 * 60 * 1000;
+
+/** Wait until the worker of `scriptUrl` is the registration's active one (or give up when it is replaced). */
+async function activeWorker(reg: ServiceWorkerRegistration, scriptUrl: string): Promise<ServiceWorker | null> {
+  const href = new URL(scriptUrl, location.href).href;
+  const ours = (w: ServiceWorker | null): w is ServiceWorker => !!w && w.scriptURL === href;
+  if (ours(reg.active)) return reg.active;
+  const pending = [reg.installing, reg.waiting].find(ours);
+  if (!pending) return reg.active;
+  await new Promise<void>((resolve) => {
+    const done = () => pending.state === 'activated' || pending.state === 'redundant';
+    if (done()) return resolve();
+    pending.addEventListener('statechange', () => done() && resolve());
+  });
+  return ours(reg.active) ? reg.active : null;
+}
+
+export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue, buildId }: RigLogProps) {
   const router = useRouter();
   const running = queue.find((q) => q.state === 'running' && q.trialId);
   const [active, setActive] = useState<ActiveTrial | null>(
@@ -88,6 +108,7 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
   const [message, setMessage] = useState<string | null>(null);
   const [warnings, setWarnings] = useState<{ field: string; message: string }[]>([]);
   const [busy, setBusy] = useState(false);
+  const [newerBuild, setNewerBuild] = useState(false);
   const [entries, setEntries] = useState<QueueEntry[]>([]);
   const sending = useRef(false);
   const retryTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
@@ -158,20 +179,50 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
     };
   }, []);
 
-  // The page shell and its static files are kept by a service worker so that the page opens offline.
+  // The page shell and its static files are kept by a service worker (one per build, see public/rig-sw.js)
+  // so that the page opens offline. The worker of a new build deletes the caches of earlier builds.
   useEffect(() => {
     if (typeof navigator === 'undefined' || !('serviceWorker' in navigator)) return;
+    const scriptUrl = `/rig-sw.js?build=${encodeURIComponent(buildId)}`;
     navigator.serviceWorker
-      .register('/rig-sw.js', { scope: '/campaigns/' })
-      .then(() => navigator.serviceWorker.ready)
-      .then((reg) => {
+      .register(scriptUrl, { scope: '/campaigns/' })
+      .then((reg) => activeWorker(reg, scriptUrl))
+      .then((worker) => {
         const urls = [location.href, ...performance.getEntriesByType('resource').map((r) => r.name)].filter((u) => u.startsWith(location.origin));
-        reg.active?.postMessage({ type: 'cache', urls });
+        worker?.postMessage({ type: 'cache', urls });
       })
       .catch(() => {
         /* without a service worker the page still works online, and the outbox still keeps entries */
       });
-  }, []);
+  }, [buildId]);
+
+  // A newer deploy: say so, so the operator reloads between trials (the outbox in IndexedDB is kept).
+  useEffect(() => {
+    let stopped = false;
+    const check = async () => {
+      if (!navigator.onLine) return;
+      try {
+        const res = await fetch('/api/v1/version', { cache: 'no-store' });
+        if (!res.ok) return;
+        const server = ((await res.json()) as { buildId?: string }).buildId;
+        if (!stopped && server && server !== buildId) setNewerBuild(true);
+      } catch {
+        /* offline: ask again later */
+      }
+    };
+    const visible = () => document.visibilityState === 'visible' && void check();
+    const first = setTimeout(() => void check(), 3000);
+    const timer = setInterval(() => void check(), VERSION_CHECK_MS);
+    window.addEventListener('online', check);
+    document.addEventListener('visibilitychange', visible);
+    return () => {
+      stopped = true;
+      clearTimeout(first);
+      clearInterval(timer);
+      window.removeEventListener('online', check);
+      document.removeEventListener('visibilitychange', visible);
+    };
+  }, [buildId]);
 
   function resetForm() {
     setReadings({});
@@ -333,6 +384,18 @@ export function RigLog({ campaignId, rigId, timeZone, responses, robots, queue }
           </div>
         </div>
       </div>
+      {newerBuild ? (
+        <div className="warning" aria-live="polite" data-testid="newer-version">
+          A newer version of the rig page is ready. Entries waiting on this tablet are kept.{' '}
+          {active ? (
+            <span className="muted">Reload after finishing or cancelling the trial in progress.</span>
+          ) : (
+            <button type="button" className="btn secondary" onClick={() => location.reload()}>
+              Reload now
+            </button>
+          )}
+        </div>
+      ) : null}
       <ErrorBox error={error} />
       {message ? (
         <div className="ok" role="status">

@@ -5,6 +5,7 @@ import { RigLog, type QueueItem } from '@/components/RigLog';
 import { RigTrials } from '@/components/RigTrials';
 import { SafetyNotice } from '@/components/SafetyNotice';
 import { isDomainError } from '@/domain/errors';
+import { buildId } from '@/server/build-id';
 import { getCampaign } from '@/server/repos/campaigns';
 import { rigTrials } from '@/server/repos/rig-log';
 import { listRuns } from '@/server/repos/runs';
@@ -37,6 +38,7 @@ export default async function RigPage({ params }: { params: Promise<{ id: string
         responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit, goal: r.goal }))}
         robots={campaign.robots.map((r) => ({ id: r.id, name: r.name, massGrams: r.massGrams }))}
         queue={queue}
+        buildId={buildId()}
       />
       <RigTrials campaignId={id} trials={logged} />
       <p>
