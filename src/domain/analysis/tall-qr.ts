@@ -75,9 +75,87 @@ export function chunkedTriangle(x: Float64Array, y: Float64Array, n: number, p: 
       // The two reflectors overlap only in the chunk rows: γ = v_{k+1}ᵀ v_k.
       let g = 0;
       for (let i = 0; i < mc; i++) g += buf[ok + i]! * buf[ok1 + i]!;
-      // Trailing columns, four at a time: one pass for both dot products, one for both updates.
+      // Trailing columns, six (then four, then one) at a time: one pass for both dot products, one
+      // for both updates; twelve accumulators and the two reflectors fit the registers.
       // (H_{k+1} H_k a = a − d v_k − e v_{k+1} with d = β_k v_kᵀa, e = β_{k+1}(v_{k+1}ᵀa − d γ).)
       let j = k + 2;
+      for (; j + 5 < q; j += 6) {
+        const o0 = j * ld;
+        const o1 = o0 + ld;
+        const o2 = o1 + ld;
+        const o3 = o2 + ld;
+        const o4 = o3 + ld;
+        const o5 = o4 + ld;
+        const ra = j * q + k;
+        let d0 = v0a * r[ra]!;
+        let d1 = v0a * r[ra + q]!;
+        let d2 = v0a * r[ra + 2 * q]!;
+        let d3 = v0a * r[ra + 3 * q]!;
+        let d4 = v0a * r[ra + 4 * q]!;
+        let d5 = v0a * r[ra + 5 * q]!;
+        let e0 = v0b * r[ra + 1]!;
+        let e1 = v0b * r[ra + q + 1]!;
+        let e2 = v0b * r[ra + 2 * q + 1]!;
+        let e3 = v0b * r[ra + 3 * q + 1]!;
+        let e4 = v0b * r[ra + 4 * q + 1]!;
+        let e5 = v0b * r[ra + 5 * q + 1]!;
+        for (let i = 0; i < mc; i++) {
+          const u = buf[ok + i]!;
+          const w = buf[ok1 + i]!;
+          const a0 = buf[o0 + i]!;
+          const a1 = buf[o1 + i]!;
+          const a2 = buf[o2 + i]!;
+          const a3 = buf[o3 + i]!;
+          const a4 = buf[o4 + i]!;
+          const a5 = buf[o5 + i]!;
+          d0 += u * a0;
+          d1 += u * a1;
+          d2 += u * a2;
+          d3 += u * a3;
+          d4 += u * a4;
+          d5 += u * a5;
+          e0 += w * a0;
+          e1 += w * a1;
+          e2 += w * a2;
+          e3 += w * a3;
+          e4 += w * a4;
+          e5 += w * a5;
+        }
+        d0 *= ba;
+        d1 *= ba;
+        d2 *= ba;
+        d3 *= ba;
+        d4 *= ba;
+        d5 *= ba;
+        e0 = bb * (e0 - d0 * g);
+        e1 = bb * (e1 - d1 * g);
+        e2 = bb * (e2 - d2 * g);
+        e3 = bb * (e3 - d3 * g);
+        e4 = bb * (e4 - d4 * g);
+        e5 = bb * (e5 - d5 * g);
+        r[ra] -= d0 * v0a;
+        r[ra + q] -= d1 * v0a;
+        r[ra + 2 * q] -= d2 * v0a;
+        r[ra + 3 * q] -= d3 * v0a;
+        r[ra + 4 * q] -= d4 * v0a;
+        r[ra + 5 * q] -= d5 * v0a;
+        r[ra + 1] -= e0 * v0b;
+        r[ra + q + 1] -= e1 * v0b;
+        r[ra + 2 * q + 1] -= e2 * v0b;
+        r[ra + 3 * q + 1] -= e3 * v0b;
+        r[ra + 4 * q + 1] -= e4 * v0b;
+        r[ra + 5 * q + 1] -= e5 * v0b;
+        for (let i = 0; i < mc; i++) {
+          const u = buf[ok + i]!;
+          const w = buf[ok1 + i]!;
+          buf[o0 + i] -= d0 * u + e0 * w;
+          buf[o1 + i] -= d1 * u + e1 * w;
+          buf[o2 + i] -= d2 * u + e2 * w;
+          buf[o3 + i] -= d3 * u + e3 * w;
+          buf[o4 + i] -= d4 * u + e4 * w;
+          buf[o5 + i] -= d5 * u + e5 * w;
+        }
+      }
       for (; j + 3 < q; j += 4) {
         const o0 = j * ld;
         const o1 = o0 + ld;
