@@ -4,6 +4,8 @@ import { generateDesign, type DesignResult } from '../../src/domain/design';
 
 const sixContinuous: Factor[] = Array.from({ length: 6 }, (_, i) => ({ name: `x${i + 1}`, kind: 'continuous', low: -1, high: 1 }));
 
+const eightContinuous: Factor[] = Array.from({ length: 8 }, (_, i) => ({ name: `x${i + 1}`, kind: 'continuous', low: -1, high: 1 }));
+
 const splitPlotFactors: Factor[] = [
   { name: 'surface', kind: 'categorical', levels: ['turf', 'ice', 'glass', 'soil'], hardToChange: true },
   { name: 'payload', kind: 'continuous', low: 0, high: 2, unit: 'g' },
@@ -61,5 +63,26 @@ export const cases: BenchCase[] = [
     warmup: 1,
     repeats: 3,
     report: reportFor('i6'),
+  },
+  {
+    // No stated target: how long choosing block generators and the blocked diagnostics take.
+    name: 'design: 2^8 full factorial in 16 blocks, interactions model (block generators by search)',
+    run: timed('blk8', () => generateDesign({ factors: eightContinuous, method: 'full-factorial', model: 'interactions', blocks: 16, seed: 1 })),
+    warmup: 1,
+    repeats: 3,
+    report: (_: unknown, last: unknown) => {
+      const d = last as DesignResult;
+      return { blocks: d.diagnostics.blocking?.blocks ?? 0, orthogonal: String(d.diagnostics.blocking?.orthogonal), shortestConfounded: Math.min(...(d.diagnostics.blocking?.confounded ?? []).map((c) => c.effect.split('*').length)) };
+    },
+  },
+  {
+    name: 'design: central composite, 6 factors, half-fraction cube in 2 blocks + axial block',
+    run: timed('ccd6', () => generateDesign({ factors: sixContinuous, method: 'central-composite', blocks: 3, centerPoints: 2, seed: 1 })),
+    warmup: 1,
+    repeats: 3,
+    report: (_: unknown, last: unknown) => {
+      const d = last as DesignResult;
+      return { alpha: d.diagnostics.axialDistance ?? NaN, orthogonal: String(d.diagnostics.blocking?.orthogonal) };
+    },
   },
 ];
