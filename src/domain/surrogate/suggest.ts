@@ -11,7 +11,7 @@
  * candidates too, so a replicate is suggested (and said so) when it is worth more than a new point.
  */
 import { DomainError, invalidInput, isDomainError } from '../errors';
-import { desirability } from '../analysis';
+import { desirability, type DesirabilityResponse } from '../analysis';
 import { augmentDesign } from '../design';
 import { codePoint, decodePoint, validateSpace, type Factor, type FactorSpace, type Point } from '../factors';
 import { seededRandom, type RandomSource } from '../random';
@@ -19,6 +19,7 @@ import { feasibleCoded, latinHypercubeCandidates, perturbations, snapCoded } fro
 import { feasibilityProbability, fitFeasibility, type FeasibilityModel } from './feasibility';
 import { fitGaussianProcess, leaveOneOutResiduals, pointCovariance, type GaussianProcessModel } from './gaussian-process';
 import { KERNEL_KINDS } from './kernels';
+import { DesirabilityImprovement, DesirabilitySurrogates } from './desirability-surrogate';
 import { NoisyImprovementState, PenalisedImprovement, PlugInImprovement, type ImprovementState } from './improvement';
 import { NoisyImprovement, noiseIsNegligible, NOISY_IMPROVEMENT_SAMPLES } from './noisy-improvement';
 import { LocalPenalty } from './penalisation';
@@ -230,6 +231,8 @@ interface Context {
   noisy: boolean;
   /** How "improve" builds a batch. */
   batch: 'believer' | 'penalised';
+  /** Several responses: one surrogate per response, combined through the overall desirability (then `model` is fitted to the observed overall desirability and only spreads candidates, explores and reports). */
+  desirability: DesirabilitySurrogates | null;
 }
 
 function probabilityOk(ctx: Pick<Context, 'feasibility'>, coded: ArrayLike<number>): number {
@@ -298,7 +301,7 @@ function buildContext(request: SuggestionRequest, data: PreparedData, model: Gau
   return {
     request, data, model, feasibility, threshold, sign, factors, pool, poolFeasibility, eligible, relaxed: !any,
     replicateOf: Int32Array.from(replicateOf), trialNumber, rng,
-    noisy: !noiseIsNegligible(model), batch: request.batch ?? 'believer',
+    noisy: !noiseIsNegligible(model), batch: request.batch ?? 'believer', desirability: null,
   };
 }
 
@@ -325,14 +328,22 @@ interface Chosen {
 /** The start of the "improve" acquisition for this context: plain or noisy EI, believer or penalised batches. */
 function improvementBase(ctx: Context): ImprovementState {
   const { model, sign, pool, request } = ctx;
-  const inner: ImprovementState = ctx.noisy
+  const inner: ImprovementState = ctx.desirability
+    ? new DesirabilityImprovement(ctx.desirability, pool, request.count)
+    : ctx.noisy
     ? new NoisyImprovementState(new NoisyImprovement(model, sign, pool, request.count, seededRandom((request.seed ?? 1) + 31337)))
     : new PlugInImprovement(model, sign, pool, request.count, observedIncumbent(ctx));
   if (ctx.batch !== 'penalised') return inner;
   // M: the best value the model believes reachable (at least the best at the observed settings), so every ball has a radius ≥ 0.
   let reachable = observedIncumbent(ctx);
   for (const c of pool) reachable = Math.max(reachable, sign * meanStandardised(model, c));
+  // (With several responses the penalty works on the surrogate of the observed overall desirability.)
   return new PenalisedImprovement(inner, new LocalPenalty(model, sign, pool, reachable));
+}
+
+/** The value "improve" and "confirm" maximise at a point: goal-signed standardised mean, or the expected overall desirability. */
+function goalValue(ctx: Pick<Context, 'model' | 'sign' | 'desirability'>, x: ArrayLike<number>): number {
+  return ctx.desirability ? ctx.desirability.at(x).mean : ctx.sign * meanStandardised(ctx.model, x);
 }
 
 /** Best goal-signed posterior mean at the observed settings (standardised units). */
@@ -351,7 +362,8 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: I
   const logP = new Float64Array(m);
   for (let c = 0; c < m; c++) logP[c] = ctx.feasibility ? Math.log(Math.max(ctx.poolFeasibility[c]!, 1e-300)) : 0;
   // The best so far as the reasons state it: the best posterior mean at the observed settings, raised by believed trials.
-  let incumbent = observedIncumbent(ctx);
+  let incumbent = ctx.desirability ? ctx.desirability.incumbent : observedIncumbent(ctx);
+  const scale = ctx.desirability ? 1 : model.yScale;
   const movable = ctx.factors.map((f, k) => (f.kind === 'continuous' && !fixed.includes(k) ? k : -1)).filter((k) => k >= 0);
   const chosenList: Chosen[] = [];
   const chosenCoded: Float64Array[] = [];
@@ -384,18 +396,18 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: I
         pick = { ...pick, coded: model.inputs[i]!, replicateOf: i };
       }
     }
-    const g = sign * meanStandardised(model, pick.coded);
+    const g = goalValue(ctx, pick.coded);
     const p = probabilityOk(ctx, pick.coded);
     const ei = state.improvementAt(pick.coded);
-    const improvement = ei.value * model.yScale;
+    const improvement = ei.value * scale;
     chosenList.push({
       coded: pick.coded,
       acquisition: improvement * p,
-      logAcquisition: ei.log + Math.log(model.yScale) + Math.log(Math.max(p, 1e-300)),
+      logAcquisition: ei.log + Math.log(scale) + Math.log(Math.max(p, 1e-300)),
       feasibility: p,
       replicateOf: pick.replicateOf,
       improvement,
-      incumbent: model.yMean + model.yScale * sign * best,
+      incumbent: ctx.desirability ? best : model.yMean + model.yScale * sign * best,
     });
     chosenCoded.push(pick.coded);
     state.add(pick.coded);
@@ -404,12 +416,16 @@ function selectImprove(ctx: Context, count: number, allowed: Uint8Array, base: I
   return chosenList;
 }
 
-function improvementName(ctx: Pick<Context, 'noisy'>): string {
+function improvementName(ctx: Pick<Context, 'noisy' | 'desirability'>): string {
+  if (ctx.desirability) return 'expected gain in overall desirability';
   return ctx.noisy ? 'expected improvement (averaged over the noise)' : 'expected improvement';
 }
 
 /** What "improve" used, for the model summary. */
 function improvementSummary(ctx: Context): string {
+  if (ctx.desirability) {
+    return `expected improvement of the overall desirability, one surrogate per response (${ctx.desirability.samples} draws per response); batch by ${ctx.batch === 'penalised' ? 'local penalisation' : 'kriging believer on every response'}`;
+  }
   const kind = ctx.noisy
     ? `noisy expected improvement (${NOISY_IMPROVEMENT_SAMPLES} joint draws of the noiseless values at the observed settings)`
     : 'log expected improvement over the best posterior mean';
@@ -442,9 +458,18 @@ function describeImprove(ctx: Context, chosen: Chosen, mean: number, sd: number)
 
 function toSuggestion(ctx: Context, chosen: Chosen, reason: (mean: number, sd: number) => string): Suggestion {
   const { model } = ctx;
-  const pr = predictStandardised(model, chosen.coded);
-  const mean = model.yMean + model.yScale * pr.mean;
-  const sd = model.yScale * Math.sqrt(pr.variance);
+  let mean: number;
+  let sd: number;
+  if (ctx.desirability) {
+    // Mean and sd of the overall desirability under the per-response surrogates.
+    const d = ctx.desirability.at(chosen.coded);
+    mean = d.mean;
+    sd = d.sd;
+  } else {
+    const pr = predictStandardised(model, chosen.coded);
+    mean = model.yMean + model.yScale * pr.mean;
+    sd = model.yScale * Math.sqrt(pr.variance);
+  }
   const values = feasibleCoded(ctx.data.space, chosen.coded)!;
   const s: Suggestion = { values, mean, sd, acquisition: chosen.acquisition, reason: reason(mean, sd) };
   if (ctx.feasibility) s.feasibility = chosen.feasibility;
@@ -627,12 +652,12 @@ function exploreStrategy(ctx: Context): Suggestion[] {
 
 /** Replicates at the predicted best setting among the allowed candidates (refined locally). */
 function confirmStrategy(ctx: Context): Suggestion[] {
-  const { model, pool, sign } = ctx;
+  const { model, pool } = ctx;
   let bestC = -1;
   let bestScore = -Infinity;
   for (let c = 0; c < pool.length; c++) {
     if (!ctx.eligible[c]) continue;
-    const s = sign * meanStandardised(model, pool[c]!);
+    const s = goalValue(ctx, pool[c]!);
     if (s > bestScore) {
       bestScore = s;
       bestC = c;
@@ -643,7 +668,7 @@ function confirmStrategy(ctx: Context): Suggestion[] {
   let replicateOf = ctx.replicateOf[bestC]!;
   if (replicateOf < 0) {
     const movable = ctx.factors.map((f, k) => (f.kind === 'continuous' ? k : -1)).filter((k) => k >= 0);
-    point = refineLocally(ctx.factors, movable, point, bestScore, (x) => sign * meanStandardised(model, x), (x) =>
+    point = refineLocally(ctx.factors, movable, point, bestScore, (x) => goalValue(ctx, x), (x) =>
       feasibleCoded(ctx.data.space, x) !== null && (ctx.relaxed || probabilityOk(ctx, x) >= ctx.threshold),
     ).coded;
     const i = model.inputs.findIndex((x) => sameSetting(x, point));
@@ -721,6 +746,23 @@ export function fitSurrogate(request: SuggestionRequest, data: PreparedData = pr
   return model;
 }
 
+/** One surrogate per response (same trials, same options as the main fit), for the overall desirability. */
+function fitResponseSurrogates(request: SuggestionRequest, data: PreparedData, responses: readonly DesirabilityResponse[]): DesirabilitySurrogates {
+  const rows = data.all.filter((a) => !a.failed).map((a) => request.data[a.row]!);
+  const surrogates = responses.map((response) => {
+    const y = rows.map((row) => toNumber(row[response.name]));
+    const model = fitGaussianProcess(data.inputs, y, {
+      kernel: request.kernel ?? 'matern52',
+      categorical: request.factors.map((f) => f.kind === 'categorical'),
+      seed: request.seed ?? 1,
+      starts: data.inputs.length > 100 ? 2 : 3,
+    });
+    model.factors = request.factors.slice();
+    return { response, model };
+  });
+  return new DesirabilitySurrogates(surrogates, seededRandom((request.seed ?? 1) + 4099));
+}
+
 /** Suggest the next batch of trials for a campaign's data. */
 export function suggestTrials(input: SuggestionRequest): SuggestionResult {
   const combined = input.responses && input.responses.length > 0;
@@ -729,10 +771,20 @@ export function suggestTrials(input: SuggestionRequest): SuggestionResult {
   const data = prepareData(request);
   const model = fitSurrogate(request, data);
   const ctx = buildContext(request, data, model, seededRandom((request.seed ?? 1) + 7919));
+  if (combined) ctx.desirability = fitResponseSurrogates(request, data, input.responses!);
   const strategy = request.strategy ?? 'improve';
   const run = { improve: improveStrategy, explore: exploreStrategy, confirm: confirmStrategy, refine: refineStrategy }[strategy];
   const summary = summarise(model, request.factors, ctx.trialNumber);
   if (strategy === 'improve') summary.acquisition = improvementSummary(ctx);
-  if (combined) summary.desirabilityOf = input.responses!.map((r) => r.name);
+  if (combined) {
+    summary.desirabilityOf = input.responses!.map((r) => r.name);
+    summary.responseModels = Object.fromEntries(ctx.desirability!.surrogates.map((s) => {
+      const lengthScales: Record<string, number> = {};
+      request.factors.forEach((f, k) => {
+        lengthScales[f.name] = s.model.lengthScales[k]!;
+      });
+      return [s.response.name, { lengthScales, noiseVariance: s.model.noiseVariance, signalVariance: s.model.signalVariance, logMarginalLikelihood: s.model.logMarginalLikelihood }];
+    }));
+  }
   return { suggestions: run(ctx), model: summary };
 }

@@ -76,6 +76,8 @@ export interface SurrogateSummary {
   };
   /** Set when several responses were combined: the modelled response is their overall desirability. */
   desirabilityOf?: string[];
+  /** Several responses: each response's own surrogate (the suggestions' mean and sd are of the overall desirability under these). */
+  responseModels?: Record<string, { lengthScales: Record<string, number>; noiseVariance: number; signalVariance: number; logMarginalLikelihood: number }>;
   /** For "improve": the acquisition and batch method used, in words. */
   acquisition?: string;
 }
