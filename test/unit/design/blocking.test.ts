@@ -345,3 +345,35 @@ describe('optimal designs with random block effects', () => {
     expect(catchError(() => generateDesign({ ...spec, blocks: 1 })).field).toBe('blocks');
   });
 });
+
+describe('blocked requests never fail other than with a named field', () => {
+  const factorArb = fc.oneof(
+    fc.constant({ kind: 'continuous', low: 0, high: 1 }),
+    fc.constant({ kind: 'discrete', values: [1, 2, 4] }),
+    fc.constant({ kind: 'discrete', values: [0, 5] }),
+    fc.constant({ kind: 'categorical', levels: ['a', 'b'] }),
+    fc.constant({ kind: 'categorical', levels: ['a', 'b', 'c'] }),
+  );
+  it('property: a design or a DomainError naming a field (never another exception)', () => {
+    fc.assert(
+      fc.property(
+        fc.array(factorArb, { minLength: 1, maxLength: 6 }),
+        fc.constantFrom('full-factorial', 'fractional-factorial', 'central-composite', 'optimal'),
+        fc.integer({ min: 1, max: 20 }),
+        fc.constantFrom('main-effects', 'interactions', 'quadratic'),
+        fc.integer({ min: 0, max: 2 }),
+        (kinds, method, blocks, model, centerPoints) => {
+          const factors = kinds.map((k, i) => ({ ...k, name: `f${i}` })) as Factor[];
+          try {
+            const d = generateDesign({ factors, method: method as 'optimal', blocks, model: model as 'quadratic', centerPoints, seed: 1, starts: 2 });
+            if (blocks > 1) expect(d.diagnostics.blocking?.blocks).toBeGreaterThan(1);
+          } catch (e) {
+            expect(e).toBeInstanceOf(DomainError);
+            expect((e as DomainError).field).toBeTruthy();
+          }
+        },
+      ),
+      { numRuns: 60, seed: 11 },
+    );
+  });
+});
