@@ -74,7 +74,8 @@ self.addEventListener('fetch', (event) => {
         const cache = await caches.open(CACHE);
         try {
           const res = await fetch(req);
-          if (res.ok) await cache.put(url.origin + url.pathname, res.clone());
+          // a redirect to /login (signed out) is not the rig page: never keep it in place of one
+          if (res.ok && !res.redirected) await cache.put(url.origin + url.pathname, res.clone());
           return res;
         } catch {
           const cached = await cache.match(url.origin + url.pathname);

@@ -4,8 +4,15 @@
  * with seeded noise, and labelled as demo data in the app. It is not a measurement of anything.
  *
  * `tsx scripts/seed.ts` seeds only an empty database; `--force` adds the demo campaign regardless.
+ * When it seeds, it also creates the demo's admin account with a random password, printed once and
+ * written to data/demo-login.txt (mode 0600; SALTUS_DEMO_LOGIN_FILE to put it elsewhere).
+ * `--no-demo` seeds nothing. Either way, a database without accounts gets a hint how to add one.
  */
+import { randomBytes } from 'node:crypto';
+import { chmodSync, mkdirSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
 import { randomNormal, seededRandom } from '../src/domain/random';
+import { countUsers, createUser } from '../src/server/auth/accounts';
 import { closeDb, db } from '../src/server/db/client';
 import { fitCampaign } from '../src/server/repos/analyses';
 import { createCampaign } from '../src/server/repos/campaigns';
@@ -101,16 +108,39 @@ export async function seedDemo(options: { force?: boolean; now?: Date } = {}): P
   return campaign.id;
 }
 
+/** The demo's admin account: a random password, printed once and written to a file only its owner can read. */
+export async function seedDemoAdmin(file = process.env.SALTUS_DEMO_LOGIN_FILE ?? path.join('data', 'demo-login.txt')): Promise<{ email: string; password: string; file: string }> {
+  const email = 'demo-admin@saltus.invalid';
+  const password = randomBytes(18).toString('base64url');
+  await createUser({ email, name: 'Demo admin', role: 'admin', password }, 'demo-seed');
+  mkdirSync(path.dirname(path.resolve(file)), { recursive: true });
+  writeFileSync(file, `Saltus demo sign-in (created ${new Date().toISOString()})\nemail: ${email}\npassword: ${password}\n`, { mode: 0o600 });
+  chmodSync(file, 0o600);
+  return { email, password, file };
+}
+
 const isMain = process.argv[1] && import.meta.url.endsWith(process.argv[1].split('/').pop()!);
 if (isMain) {
-  seedDemo({ force: process.argv.includes('--force') })
-    .then(async (id) => {
-      console.log(id ? `seeded the demo campaign (invented data): ${id}` : 'database already has campaigns; demo not seeded');
-      await closeDb();
-    })
-    .catch(async (e) => {
-      console.error(`seeding failed: ${e instanceof Error ? e.message : String(e)}`);
-      await closeDb();
-      process.exit(1);
-    });
+  (async () => {
+    const noDemo = process.argv.includes('--no-demo');
+    const id = noDemo ? null : await seedDemo({ force: process.argv.includes('--force') });
+    if (id) {
+      console.log(`seeded the demo campaign (invented data): ${id}`);
+      const login = await seedDemoAdmin();
+      console.log(`demo admin account (shown once; also in ${login.file}, readable only by you):`);
+      console.log(`  email:    ${login.email}`);
+      console.log(`  password: ${login.password}`);
+    } else if (!noDemo) {
+      console.log('database already has campaigns; demo not seeded');
+    }
+    if ((await countUsers()) === 0) {
+      console.log('no accounts yet: add one with');
+      console.log('  npm run saltus -- user add --email you@lab.example --name "Your Name" --role admin');
+    }
+    await closeDb();
+  })().catch(async (e) => {
+    console.error(`seeding failed: ${e instanceof Error ? e.message : String(e)}`);
+    await closeDb();
+    process.exit(1);
+  });
 }

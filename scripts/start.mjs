@@ -23,7 +23,7 @@ function step(label, args) {
 
 if (!existsSync(path.join(root, 'src', 'generated', 'sqlite', 'client.ts'))) step('generated database clients', [path.join('scripts', 'db', 'generate.mjs')]);
 step('database migrated', [tsx, path.join('scripts', 'migrate.ts')]);
-if (process.env.SALTUS_NO_DEMO !== '1') step('demo campaign checked', [tsx, path.join('scripts', 'seed.ts')]);
+step('demo campaign and accounts checked', [tsx, path.join('scripts', 'seed.ts'), ...(process.env.SALTUS_NO_DEMO === '1' ? ['--no-demo'] : [])]);
 if (!existsSync(path.join(root, '.next', 'BUILD_ID')) || process.env.SALTUS_REBUILD === '1') step('app built', [nextBin, 'build']);
 
 console.log(`saltus: serving on http://localhost:${port}`);

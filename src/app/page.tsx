@@ -1,3 +1,4 @@
+import { IfMay } from '@/components/role-context';
 import Link from 'next/link';
 import { SafetyNotice } from '@/components/SafetyNotice';
 import { listCampaigns } from '@/server/repos/campaigns';
@@ -13,11 +14,13 @@ export default async function Home() {
         A campaign asks which factors drive a robot&apos;s hops. Plan it as a designed experiment, place its runs on the rigs,
         log each trial at the rig, fit the results, and let Saltus propose the next most informative trial.
       </p>
-      <p>
-        <Link className="btn" href="/campaigns/new">
-          New campaign
-        </Link>
-      </p>
+      <IfMay action="createCampaign">
+        <p>
+          <Link className="btn" href="/campaigns/new">
+            New campaign
+          </Link>
+        </p>
+      </IfMay>
       <div className="grid2">
         {campaigns.map((c) => (
           <section key={c.id} className="panel" data-testid="campaign-card">

@@ -8,6 +8,7 @@ import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
+import { useMay } from './role-context';
 import { TrackUpload } from './TrackUpload';
 import type { RigTrialView } from '@/server/repos/rig-log';
 
@@ -108,6 +109,7 @@ function AmendForm({ campaignId, trial, onDone }: { campaignId: string; trial: R
 
 function TrialCard({ campaignId, trial }: { campaignId: string; trial: RigTrialItem }) {
   const [open, setOpen] = useState<'amend' | 'track' | null>(null);
+  const canLog = useMay('logTrials');
   return (
     <li data-testid="logged-trial" data-run={trial.runNumber}>
       <strong>Run {trial.runNumber}</strong> ({trial.status}
@@ -130,14 +132,14 @@ function TrialCard({ campaignId, trial }: { campaignId: string; trial: RigTrialI
           </li>
         ))}
       </ul>
-      <p style={{ margin: 0 }}>
+      {canLog ? <p style={{ margin: 0 }}>
         <button type="button" className="btn secondary" onClick={() => setOpen(open === 'amend' ? null : 'amend')} aria-label={`Correct a value of run ${trial.runNumber}`}>
           Correct a value
         </button>{' '}
         <button type="button" className="btn secondary" onClick={() => setOpen(open === 'track' ? null : 'track')} aria-label={`Add a motion track to run ${trial.runNumber}`}>
           Add motion track
         </button>
-      </p>
+      </p> : null}
       {open === 'amend' ? <AmendForm campaignId={campaignId} trial={trial} onDone={() => setOpen(null)} /> : null}
       {open === 'track' ? <TrackUpload campaignId={campaignId} trialId={trial.id} runNumber={trial.runNumber} /> : null}
     </li>

@@ -8,6 +8,17 @@ export interface ApiError {
   details?: unknown;
 }
 
+/**
+ * Changes made with the session cookie carry the x-csrf-token header: the value of the readable
+ * saltus_csrf cookie set at sign-in (bound to the session on the server). Read at send time, so
+ * entries replayed later from the rig outbox carry the current value.
+ */
+export function csrfHeader(method: string): Record<string, string> {
+  if (method === 'GET' || typeof document === 'undefined') return {};
+  const m = /(?:^|;\s*)saltus_csrf=([^;]*)/.exec(document.cookie);
+  return m ? { 'x-csrf-token': decodeURIComponent(m[1]!) } : {};
+}
+
 export type ApiResult<T> = { ok: true; data: T; status: number } | { ok: false; error: ApiError; status: number };
 
 export async function callApi<T>(url: string, method: 'GET' | 'POST', body?: unknown, headers: Record<string, string> = {}): Promise<ApiResult<T>> {
@@ -15,7 +26,7 @@ export async function callApi<T>(url: string, method: 'GET' | 'POST', body?: unk
   try {
     res = await fetch(url, {
       method,
-      headers: { 'content-type': 'application/json', ...headers },
+      headers: { 'content-type': 'application/json', ...csrfHeader(method), ...headers },
       body: body === undefined ? undefined : JSON.stringify(body),
     });
   } catch {
@@ -38,7 +49,7 @@ export const postJson = <T,>(url: string, body: unknown, headers?: Record<string
 export async function postText<T>(url: string, body: string | ArrayBuffer | Blob, contentType = 'text/csv'): Promise<ApiResult<T>> {
   let res: Response;
   try {
-    res = await fetch(url, { method: 'POST', headers: { 'content-type': contentType }, body });
+    res = await fetch(url, { method: 'POST', headers: { 'content-type': contentType, ...csrfHeader('POST') }, body });
   } catch {
     return { ok: false, status: 0, error: { code: 'offline', message: 'the server could not be reached; check the network and try again', field: null } };
   }

@@ -36,7 +36,7 @@ describe('a server killed while logging loses no acknowledged trial', () => {
   });
 
   async function post(app: RunningApp, url: string, body: unknown, headers: Record<string, string> = {}) {
-    const res = await fetch(`${app.baseUrl}${url}`, {
+    const res = await app.fetch(`${app.baseUrl}${url}`, {
       method: 'POST',
       headers: { 'content-type': 'application/json', ...headers },
       body: JSON.stringify(body),
@@ -60,7 +60,7 @@ describe('a server killed while logging loses no acknowledged trial', () => {
     expect(created.status, JSON.stringify(created.json)).toBe(201);
     const campaignId = String(created.json!.id);
     expect((await post(first, `/api/v1/campaigns/${campaignId}/designs`, { method: 'full-factorial', seed: 1 })).status).toBeLessThan(300);
-    const runs = (await (await fetch(`${first.baseUrl}/api/v1/campaigns/${campaignId}/runs`)).json()) as { runs: { id: string }[] };
+    const runs = (await (await first.fetch(`${first.baseUrl}/api/v1/campaigns/${campaignId}/runs`)).json()) as { runs: { id: string }[] };
     const runIds = runs.runs.map((r) => r.id);
     expect(runIds.length).toBeGreaterThan(0);
 

@@ -3,9 +3,14 @@
  * `next start` on a free loopback port with a throw-away SQLite database (migrated, plus the demo seed
  * when scripts/seed.ts exists), and headless chromium through playwright-core.
  *
- *   const app = await startApp();           // { baseUrl, databaseUrl, stop(), output() }
+ *   const app = await startApp();           // { baseUrl, databaseUrl, admin, fetch(), addUser(), stop(), output() }
  *   const browser = await launchBrowser();
- *   const page = await tabletPage(browser); // iPad (gen 7) viewport, touch
+ *   const page = await tabletPage(browser); // iPad (gen 7) viewport, touch, signed in as the app's admin
+ *   const res = await app.fetch(`${app.baseUrl}/api/v1/campaigns`); // with the admin's API token
+ *
+ * Every app gets an admin account and an admin API token (made through the repository, as the CLI
+ * makes them; `app.addUser(role)` runs `npm run saltus -- user add`); pages need a signed-in person, so
+ * tabletPage signs in through /login.
  *   await page.goto(`${app.baseUrl}/`);
  *   await screenshot(page, 'home');         // test-results/home.png
  *   await browser.close(); await app.stop();
@@ -17,6 +22,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, devices, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { createToken, createUser } from '@/server/auth/accounts';
+import { closeDb } from '@/server/db/client';
 import { databaseConfig } from '@/server/db/config';
 import { migrate } from '@/server/db/migrate';
 
@@ -36,7 +43,22 @@ export interface RunningApp {
   stop(): Promise<void>;
   /** kill -9 of the server's whole process group, no shutdown at all (a crash); keeps the database */
   crash(): Promise<void>;
+  /** the admin account made for the test */
+  admin: Account;
+  /** an admin API token (Authorization: Bearer …) */
+  token: string;
+  /** fetch with the admin token's Authorization header added */
+  fetch(url: string, init?: RequestInit): Promise<Response>;
+  /** a further account with the role, made with the CLI */
+  addUser(role: 'admin' | 'planner' | 'operator' | 'viewer'): Account;
 }
+
+export interface Account {
+  email: string;
+  password: string;
+}
+
+let lastApp: RunningApp | null = null;
 
 export interface StartOptions {
   /** run scripts/seed.ts when it exists (default true) */
@@ -86,6 +108,30 @@ export function freePort(): Promise<number> {
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
+/**
+ * The test's admin account and admin API token, made through the repository (as the CLI makes them) in
+ * the app's database: this process points its database client there for the moment.
+ */
+async function makeAdmin(env: NodeJS.ProcessEnv): Promise<{ admin: Account; token: string }> {
+  const saved = { DATABASE_URL: process.env.DATABASE_URL, SALTUS_SQLITE_FILE: process.env.SALTUS_SQLITE_FILE };
+  const tag = Date.now().toString(36) + Math.random().toString(36).slice(2, 6);
+  const admin = { email: `admin-${tag}@e2e.example`, password: `e2e-password-${tag}-long-enough` };
+  await closeDb();
+  process.env.DATABASE_URL = env.DATABASE_URL;
+  process.env.SALTUS_SQLITE_FILE = env.SALTUS_SQLITE_FILE;
+  try {
+    await createUser({ email: admin.email, name: 'E2E admin', role: 'admin', password: admin.password }, 'e2e-setup');
+    const { token } = await createToken({ name: `e2e-admin-${tag}`, role: 'admin' }, 'e2e-setup');
+    return { admin, token };
+  } finally {
+    await closeDb();
+    for (const [k, v] of Object.entries(saved)) {
+      if (v === undefined) delete process.env[k];
+      else process.env[k] = v;
+    }
+  }
+}
+
 /** Starts the built app on a fresh database and waits until GET /api/health answers {"status":"ok"}. */
 export async function startApp(options: StartOptions = {}): Promise<RunningApp> {
   if (!existsSync(path.join(repoRoot, '.next', 'BUILD_ID'))) {
@@ -101,18 +147,38 @@ export async function startApp(options: StartOptions = {}): Promise<RunningApp> 
     NODE_ENV: 'production',
     ...options.env,
   };
+  env.SALTUS_DEMO_LOGIN_FILE ??= path.join(dir, 'demo-login.txt');
+  // the browser tests run many analyses and proposals in a short time as one person
+  env.SALTUS_HEAVY_BURST ??= '1000';
   const removeDir = () => rmSync(dir, { recursive: true, force: true });
+  const tsx = path.join(repoRoot, 'node_modules', 'tsx', 'dist', 'cli.mjs');
+  const cli = (args: string[], input?: string) => {
+    const r = spawnSync(process.execPath, [tsx, path.join(repoRoot, 'scripts', 'saltus.ts'), ...args], { cwd: repoRoot, env, encoding: 'utf8', input, timeout: 120_000 });
+    if (r.status !== 0) throw new Error(`npm run saltus -- ${args.join(' ')} failed (exit code ${r.status}):\n${r.stdout}\n${r.stderr}`);
+    return r.stdout;
+  };
+  let users = 0;
+  const addUser = (role: 'admin' | 'planner' | 'operator' | 'viewer'): Account => {
+    users += 1;
+    // unique per start: a restart on the same database file (crash test) adds its own
+    const tag = `${Date.now().toString(36)}${users}`;
+    const account = { email: `${role}-${tag}@e2e.example`, password: `e2e-password-${tag}-long-enough` };
+    cli(['user', 'add', '--email', account.email, '--name', `E2E ${role} ${users}`, '--role', role, '--password-stdin'], account.password);
+    return account;
+  };
+  let admin: Account;
+  let token = '';
 
   try {
     await migrate(databaseConfig(env), repoRoot);
     const seedScript = path.join(repoRoot, 'scripts', 'seed.ts');
     if (options.seed !== false && existsSync(seedScript)) {
-      const tsx = path.join(repoRoot, 'node_modules', 'tsx', 'dist', 'cli.mjs');
       const seeded = spawnSync(process.execPath, [tsx, seedScript], { cwd: repoRoot, env, encoding: 'utf8', timeout: 120_000 });
       if (seeded.status !== 0) {
         throw new Error(`scripts/seed.ts failed (exit code ${seeded.status}):\n${seeded.stdout}\n${seeded.stderr}`);
       }
     }
+    ({ admin, token } = await makeAdmin(env));
   } catch (e) {
     removeDir();
     throw e;
@@ -166,7 +232,13 @@ export async function startApp(options: StartOptions = {}): Promise<RunningApp> 
       const res = await fetch(`${baseUrl}/api/health`, { signal: AbortSignal.timeout(5000) });
       const body = await res.text();
       if (res.ok && (JSON.parse(body) as { status?: string }).status === 'ok') {
-        return { baseUrl, databaseUrl: `file:${dbFile}`, output: () => log, stop, crash };
+        const authFetch = (url: string, init: RequestInit = {}) => {
+          const headers = new Headers(init.headers);
+          headers.set('authorization', `Bearer ${token}`);
+          return fetch(url, { ...init, headers });
+        };
+        lastApp = { baseUrl, databaseUrl: `file:${dbFile}`, output: () => log, stop, crash, admin: admin!, token, fetch: authFetch, addUser };
+        return lastApp;
       }
       last = `HTTP ${res.status}: ${body.slice(0, 300)}`;
     } catch (e) {
@@ -196,10 +268,25 @@ export async function launchBrowser(): Promise<Browser> {
   });
 }
 
-/** A fresh context emulating a tablet at the rig (810 x 1080 CSS pixels, touch) and a page in it. */
-export async function tabletPage(browser: Browser, extra: Parameters<Browser['newContext']>[0] = {}): Promise<Page> {
+/**
+ * A fresh context emulating a tablet at the rig (810 x 1080 CSS pixels, touch) and a page in it,
+ * signed in through /login as `account` (default: the admin of the app started last; null: not signed in).
+ */
+export async function tabletPage(browser: Browser, extra: Parameters<Browser['newContext']>[0] = {}, account: Account | null | undefined = undefined): Promise<Page> {
   const context: BrowserContext = await browser.newContext({ ...tabletDevice, ...extra });
-  return context.newPage();
+  const page = await context.newPage();
+  const who = account === undefined ? lastApp?.admin : account;
+  if (who && lastApp) await signIn(page, lastApp.baseUrl, who);
+  return page;
+}
+
+/** Signs in through the /login page and waits until it has left it. */
+export async function signIn(page: Page, baseUrl: string, account: Account): Promise<void> {
+  await page.goto(`${baseUrl}/login`);
+  await page.getByLabel('E-mail').fill(account.email);
+  await page.getByLabel('Password').fill(account.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((u) => !u.pathname.startsWith('/login'), { timeout: 30_000 });
 }
 
 /** Saves a full-page screenshot as test-results/<name>.png and returns its path. */

@@ -32,7 +32,7 @@ describe('planner page and week grid on a tablet', () => {
     browser = await launchBrowser();
     page = await tabletPage(browser, { acceptDownloads: true });
     page.on('pageerror', (e) => errors.push(e.message));
-    const list = (await (await fetch(`${app.baseUrl}/api/v1/campaigns`)).json()) as { campaigns: { id: string; isDemo?: boolean }[] };
+    const list = (await (await app.fetch(`${app.baseUrl}/api/v1/campaigns`)).json()) as { campaigns: { id: string; isDemo?: boolean }[] };
     id = list.campaigns[0]!.id;
   });
 
@@ -65,7 +65,7 @@ describe('planner page and week grid on a tablet', () => {
 
     await page.getByRole('button', { name: 'Commit candidate B' }).click();
     await expect.poll(() => page.getByRole('status').innerText(), { timeout: 60_000 }).toMatch(new RegExp(`Candidate B committed as design version 2: ${runsB} runs`));
-    const runs = ((await (await fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: { state: string; wholePlot: number | null }[] }).runs;
+    const runs = ((await (await app.fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: { state: string; wholePlot: number | null }[] }).runs;
     const open = runs.filter((r) => r.state === 'planned');
     expect(open).toHaveLength(runsB);
     expect(new Set(open.map((r) => r.wholePlot)).size).toBeGreaterThanOrEqual(2);

@@ -19,7 +19,7 @@ describe('the rig page offline', () => {
   const errors: string[] = [];
 
   async function api<T>(path: string, body?: unknown): Promise<T> {
-    const res = await fetch(`${app.baseUrl}${path}`, {
+    const res = await app.fetch(`${app.baseUrl}${path}`, {
       method: body === undefined ? 'GET' : 'POST',
       headers: { 'content-type': 'application/json' },
       body: body === undefined ? undefined : JSON.stringify(body),
@@ -150,7 +150,8 @@ describe('the rig page offline', () => {
       for (const e of entries) {
         const res = await fetch(`/api/v1/campaigns/${id}/trials/log`, {
           method: 'POST',
-          headers: { 'content-type': 'application/json', 'Idempotency-Key': e.key },
+          // signed in by cookie: a change carries the session's CSRF value, as the app's own calls do
+          headers: { 'content-type': 'application/json', 'Idempotency-Key': e.key, 'x-csrf-token': /saltus_csrf=([^;]*)/.exec(document.cookie)?.[1] ?? '' },
           body: JSON.stringify(e.body),
         });
         out.push({ status: res.status, replayed: ((await res.json()) as { replayed: boolean }).replayed });

@@ -75,7 +75,7 @@ describe('tracks, corrections and import at the rig page', () => {
   const errors: string[] = [];
 
   async function api<T>(path: string, body?: unknown, headers: Record<string, string> = {}): Promise<T> {
-    const res = await fetch(`${app.baseUrl}${path}`, {
+    const res = await app.fetch(`${app.baseUrl}${path}`, {
       method: body === undefined ? 'GET' : 'POST',
       headers: { 'content-type': 'application/json', ...headers },
       body: body === undefined ? undefined : JSON.stringify(body),

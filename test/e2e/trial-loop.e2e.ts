@@ -30,7 +30,7 @@ describe('the trial loop on a tablet', () => {
   });
 
   async function campaignCount(): Promise<number> {
-    const res = await fetch(`${app.baseUrl}/api/v1/campaigns`);
+    const res = await app.fetch(`${app.baseUrl}/api/v1/campaigns`);
     return ((await res.json()) as { campaigns: unknown[] }).campaigns.length;
   }
 
@@ -125,7 +125,7 @@ describe('the trial loop on a tablet', () => {
       await page.getByRole('button', { name: 'Finish trial' }).waitFor({ state: 'detached' });
     }
     await screenshot(page, 'loop-4-rig');
-    const trials = await (await fetch(`${app.baseUrl}/api/v1/campaigns/${campaignUrl.split('/').pop()}/trials`)).json();
+    const trials = await (await app.fetch(`${app.baseUrl}/api/v1/campaigns/${campaignUrl.split('/').pop()}/trials`)).json();
     expect((trials as { trials: { status: string }[] }).trials.filter((t) => t.status === 'done')).toHaveLength(apex.length);
   });
 
@@ -146,13 +146,13 @@ describe('the trial loop on a tablet', () => {
 
   it('6 · proposes the next trial and adds it to the campaign as a new run', async () => {
     const id = campaignUrl.split('/').pop();
-    const before = ((await (await fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: unknown[] }).runs.length;
+    const before = ((await (await app.fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: unknown[] }).runs.length;
     await page.goto(`${campaignUrl}/next`);
     await page.getByRole('button', { name: 'Propose next trial' }).click();
     await expect.poll(() => page.getByTestId('proposal').innerText()).toMatch(/prediction variance/);
     await page.getByRole('button', { name: 'Add to campaign as a new run' }).click();
     await expect.poll(() => page.getByRole('status').innerText()).toMatch(/as run \d+/);
-    const after = ((await (await fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: unknown[] }).runs.length;
+    const after = ((await (await app.fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as { runs: unknown[] }).runs.length;
     expect(after).toBe(before + 1);
     await screenshot(page, 'loop-6-next-trial');
   });

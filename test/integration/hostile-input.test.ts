@@ -10,6 +10,7 @@ import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { closeDb, db } from '@/server/db/client';
 import { createCampaign } from '@/server/repos/campaigns';
 import { commitDesign, listRuns } from '@/server/repos/runs';
+import { bearer, tokenFor } from '../support/auth';
 import { freshDatabase } from './database';
 
 type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
@@ -42,9 +43,11 @@ describe('hostile input on every POST route', () => {
   let runId = '';
   let trialCount = 0;
   let routes: [string, Handler, Record<string, string>][] = [];
+  let auth: Record<string, string> = {};
 
   beforeAll(async () => {
     await freshDatabase();
+    auth = bearer(await tokenFor('admin'));
     const c = await createCampaign(
       campaignCreateSchema.parse({
         name: 'Fuzz target',
@@ -90,7 +93,7 @@ describe('hostile input on every POST route', () => {
     for (const [path, handler, params] of routes) {
       await fc.assert(
         fc.asyncProperty(body, async (text) => {
-          const req = new Request(`http://localhost/api/${path}`, { method: 'POST', body: text, headers: { 'content-type': 'application/json' } });
+          const req = new Request(`http://localhost/api/${path}`, { method: 'POST', body: text, headers: { 'content-type': 'application/json', ...auth } });
           const res = await handler(req, { params: Promise.resolve(params) });
           expect(res.status, `${path} answered ${res.status} to ${text.slice(0, 120)}`).toBeLessThan(500);
           if (res.status >= 400) {
@@ -125,7 +128,7 @@ describe('hostile input on every POST route', () => {
           [designs, s],
           [campaigns, { name: 'fuzz', factors: s.factors, responses: [{ name: 'y', goal: 'maximize' }] }],
         ] as const) {
-          const res = await handler(new Request('http://localhost/api', { method: 'POST', body: JSON.stringify(payload) }), { params: Promise.resolve({}) });
+          const res = await handler(new Request('http://localhost/api', { method: 'POST', body: JSON.stringify(payload), headers: auth }), { params: Promise.resolve({}) });
           expect(res.status).toBeLessThan(500);
           if (res.status >= 400) {
             const json = (await res.json()) as { error?: { message?: string; field?: unknown } };

@@ -5,9 +5,9 @@
  * and runs the queued ones. Also the /api/v1/jobs routes, called as the server calls them.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { POST as createJob, GET as listJobsRoute } from '@/app/api/v1/jobs/route';
-import { GET as getJobRoute } from '@/app/api/v1/jobs/[id]/route';
-import { POST as cancelJobRoute } from '@/app/api/v1/jobs/[id]/cancel/route';
+import { POST as createJobPOST, GET as listJobsGET } from '@/app/api/v1/jobs/route';
+import { GET as getJobGET } from '@/app/api/v1/jobs/[id]/route';
+import { POST as cancelJobPOST } from '@/app/api/v1/jobs/[id]/cancel/route';
 import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { closeDb, db } from '@/server/db/client';
 import { stopJobRunner } from '@/server/jobs';
@@ -19,7 +19,11 @@ import { commitDesign, listRuns } from '@/server/repos/runs';
 import { listSuggestions } from '@/server/repos/suggestions';
 import { finishTrial, startTrial } from '@/server/repos/trials';
 import { getJob, type JobView } from '@/server/repos/jobs';
+import { signed } from '../support/auth';
 import { freshDatabase } from './database';
+
+// the routes check credentials: these send an admin API token made in the test database
+const [createJob, listJobsRoute, getJobRoute, cancelJobRoute] = [createJobPOST, listJobsGET, getJobGET, cancelJobPOST].map((h) => signed(h));
 
 const factors = Array.from({ length: 6 }, (_, i) => ({ name: `x${i + 1}`, kind: 'continuous' as const, low: 0, high: 1 }));
 const search = (starts: number) => ({ factors, method: 'optimal' as const, model: 'quadratic' as const, runs: 40, starts, seed: 3 });

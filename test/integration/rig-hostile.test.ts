@@ -8,6 +8,7 @@ import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { closeDb, db } from '@/server/db/client';
 import { createCampaign } from '@/server/repos/campaigns';
 import { commitDesign, listRuns } from '@/server/repos/runs';
+import { bearer, tokenFor } from '../support/auth';
 import { freshDatabase } from './database';
 
 type Handler = (req: Request, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>;
@@ -34,6 +35,7 @@ const query = fc.oneof(
 describe('hostile input on the rig routes', () => {
   let campaignId = '';
   let trialId = '';
+  let auth: Record<string, string> = {};
   let counts = { trials: 0, runs: 0, tracks: 0, observations: 0 };
   let routes: [string, Handler][] = [];
 
@@ -44,6 +46,7 @@ describe('hostile input on the rig routes', () => {
 
   beforeAll(async () => {
     await freshDatabase();
+    auth = bearer(await tokenFor('planner'));
     const c = await createCampaign(
       campaignCreateSchema.parse({
         name: 'Rig fuzz target',
@@ -73,7 +76,7 @@ describe('hostile input on the rig routes', () => {
     for (const [path, handler] of routes) {
       await fc.assert(
         fc.asyncProperty(body, query, fc.constantFrom(null, 'fuzz-key-0001', 'short', 'bad key with spaces'), async (text, q, key) => {
-          const headers: Record<string, string> = { 'content-type': 'application/json' };
+          const headers: Record<string, string> = { 'content-type': 'application/json', ...auth };
           if (key) headers['idempotency-key'] = key;
           const req = new Request(`http://localhost/api/${path}${q}`, { method: 'POST', body: text, headers });
           const res = await handler(req, { params: Promise.resolve({ id: campaignId, trialId }) });

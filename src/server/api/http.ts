@@ -1,8 +1,13 @@
 /**
- * HTTP edges for route handlers: read a JSON body safely, run the handler, map domain errors to
- * 4xx JSON `{ error: { code, message, field } }`. A 500 never carries a stack trace.
+ * HTTP edges for route handlers: check who is calling (src/server/auth/guard.ts, against the one
+ * permission table), read a JSON body safely, run the handler, map domain errors to 4xx JSON
+ * `{ error: { code, message, field } }`. A 500 never carries a stack trace. Every route file uses
+ * `route` or `jsonPost`, so no route can skip the check.
  */
 import { DomainError, isDomainError } from '@/domain/errors';
+import { guard, type Caller } from '@/server/auth/guard';
+
+export type { Caller } from '@/server/auth/guard';
 
 const STATUS: Record<DomainError['code'], number> = {
   invalid_input: 400,
@@ -56,12 +61,14 @@ export async function readText(req: Request, maxBytes = MAX_JSON_BYTES): Promise
   return text;
 }
 
-/** Wrap a JSON POST handler: body → result, errors mapped. */
-export function jsonPost<T>(handler: (body: unknown, req: Request) => T | Promise<T>) {
+/** Wrap a JSON POST handler: caller checked, body → result, errors mapped. */
+export function jsonPost<T>(handler: (body: unknown, req: Request, caller: Caller) => T | Promise<T>) {
   return async (req: Request): Promise<Response> => {
     try {
+      const caller = await guard(req);
+      if (caller instanceof Response) return caller;
       const body = await readJson(req);
-      return jsonResponse(await handler(body, req));
+      return jsonResponse(await handler(body, req, caller));
     } catch (e) {
       return errorResponse(e);
     }
@@ -71,11 +78,17 @@ export function jsonPost<T>(handler: (body: unknown, req: Request) => T | Promis
 type Params = Record<string, string>;
 type Ctx = { params: Promise<Params> };
 
-/** Wrap any handler with route params: errors mapped to 4xx JSON, results to 200 (or the given status). */
-export function route<T>(handler: (req: Request, params: Params) => Promise<T | Response>, status = 200) {
+/**
+ * Wrap any handler with route params: caller checked (401/403/429 before the handler runs), errors
+ * mapped to 4xx JSON, results to 200 (or the given status). The handler gets the caller, whose
+ * `actor` goes to the audit trail.
+ */
+export function route<T>(handler: (req: Request, params: Params, caller: Caller) => Promise<T | Response>, status = 200) {
   return async (req: Request, ctx: Ctx): Promise<Response> => {
     try {
-      const result = await handler(req, await ctx.params);
+      const caller = await guard(req);
+      if (caller instanceof Response) return caller;
+      const result = await handler(req, await ctx.params, caller);
       return result instanceof Response ? result : jsonResponse(result, status);
     } catch (e) {
       return errorResponse(e);

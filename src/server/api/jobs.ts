@@ -7,7 +7,7 @@ import { z } from 'zod';
 import { startedJobRunner } from '@/server/jobs';
 import { JOB_KINDS, prepareJob } from '@/server/jobs/kinds';
 import { getJob, listJobs, requestCancel, type JobView } from '@/server/repos/jobs';
-import { jsonResponse, readJson } from './http';
+import { jsonResponse, readJson, type Caller } from './http';
 import { parseWith } from './validation';
 
 export const jobIdSchema = z.string().regex(/^[A-Za-z0-9_-]{1,64}$/, 'an id has only letters, digits, _ and - (at most 64)');
@@ -33,14 +33,11 @@ export function publicJob(j: JobView) {
   return out;
 }
 
-// Until accounts exist every change is made by "local", as in the other handlers.
-const actorOf = (_req: Request) => 'local';
-
-export const createJobHandler = async (req: Request) => {
+export const createJobHandler = async (req: Request, _p: Record<string, string>, c: Caller) => {
   const body = parseWith(jobCreateSchema, await readJson(req));
   const envelope = await prepareJob(body.kind, body.input, body.campaignId);
   const runner = await startedJobRunner();
-  const job = await runner.submit(body.kind, envelope, { campaignId: body.campaignId, createdBy: actorOf(req) });
+  const job = await runner.submit(body.kind, envelope, { campaignId: body.campaignId, createdBy: c.actor });
   return jsonResponse({ id: job.id, status: job.status }, 202, { location: `/api/v1/jobs/${job.id}` });
 };
 
@@ -54,10 +51,10 @@ export const listJobsHandler = async (req: Request) => {
   return { jobs: (await listJobs(filter)).map(publicJob) };
 };
 
-export const cancelJobHandler = async (req: Request, p: Record<string, string>) => {
+export const cancelJobHandler = async (_req: Request, p: Record<string, string>, c: Caller) => {
   // The row's flag is set here, in the route's own modules (its refusals map to 4xx here); the runner
   // is then told so a job running on this server stops without waiting for its next poll.
-  const view = await requestCancel(parseWith(id, p.id, 'id'), actorOf(req));
+  const view = await requestCancel(parseWith(id, p.id, 'id'), c.actor);
   (await startedJobRunner()).interrupt(view.id);
   return publicJob(view);
 };

@@ -3,7 +3,7 @@ import { daySheet, rigCalendar, weekGrid } from '@/domain/schedule';
 import { scopeCalendarUids } from '@/server/plan/calendar-scope';
 import { daySheetQuerySchema, planMoveSchema, planSpanSchema } from '@/server/api/schemas/plan';
 import { loadPlan, moveWholePlot, rigOf } from '@/server/repos/week-plan';
-import { readJson } from './http';
+import { readJson, type Caller } from './http';
 import { parseWith } from './validation';
 
 const query = (req: Request) => Object.fromEntries(new URL(req.url).searchParams.entries());
@@ -38,7 +38,7 @@ export const rigCalendarHandler = async (req: Request, p: Record<string, string>
 };
 
 /** POST .../schedule/move: the schedule engine checks the move first; a refused move answers 4xx naming the field. */
-export const moveHandler = async (req: Request, p: Record<string, string>) => {
+export const moveHandler = async (req: Request, p: Record<string, string>, c: Caller) => {
   const input = parseWith(planMoveSchema, await readJson(req));
-  return moveWholePlot(p.id!, input);
+  return moveWholePlot(p.id!, input, c.actor);
 };

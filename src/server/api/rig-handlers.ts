@@ -8,7 +8,7 @@ import { trialImportSchema, trialLogSchema } from '@/server/api/schemas/rig';
 import { importTrials } from '@/server/repos/imports';
 import { getTrial, logTrial } from '@/server/repos/rig-log';
 import { storeMcapTrack, storeTrack, type TrackUpload } from '@/server/repos/tracks';
-import { IDEMPOTENCY_KEY, jsonResponse, readJson, readText } from './http';
+import { IDEMPOTENCY_KEY, jsonResponse, readJson, readText, type Caller } from './http';
 import { optionalQueryNumber, trackQuerySchema } from './tracks';
 import { parseWith } from './validation';
 
@@ -17,13 +17,13 @@ export const MAX_TRIAL_TRACK_BYTES = 16 * 1024 * 1024;
 /** Largest past-trials import, bytes of JSON. */
 export const MAX_IMPORT_BYTES = 8 * 1024 * 1024;
 
-export const logTrialHandler = async (req: Request, p: Record<string, string>) => {
+export const logTrialHandler = async (req: Request, p: Record<string, string>, c: Caller) => {
   const key = req.headers.get('idempotency-key');
   if (key === null || !IDEMPOTENCY_KEY.test(key)) {
     throw new DomainError('invalid_input', 'send an Idempotency-Key header of 8–100 letters, digits or . _ : - (one per log entry)', 'Idempotency-Key');
   }
   const input = parseWith(trialLogSchema, await readJson(req));
-  const result = await logTrial(p.id!, input, key);
+  const result = await logTrial(p.id!, input, key, c.actor);
   return jsonResponse(result, result.replayed ? 200 : 201);
 };
 
@@ -47,14 +47,14 @@ async function readBytes(req: Request, maxBytes: number): Promise<Uint8Array> {
   return bytes;
 }
 
-export const storeTrackHandler = async (req: Request, p: Record<string, string>) => {
+export const storeTrackHandler = async (req: Request, p: Record<string, string>, c: Caller) => {
   const params = new URL(req.url).searchParams;
   if (params.get('format') === 'mcap') {
     const raw: Record<string, string> = {};
     for (const [k, v] of params) if (k !== 'format') raw[k] = v;
     const q = parseWith(mcapQuerySchema, raw);
     const bytes = await readBytes(req, MAX_TRIAL_TRACK_BYTES);
-    return jsonResponse(await storeMcapTrack(p.id!, p.trialId!, bytes, q), 201);
+    return jsonResponse(await storeMcapTrack(p.id!, p.trialId!, bytes, q, c.actor), 201);
   }
   const csv = await readText(req, MAX_TRIAL_TRACK_BYTES);
   const raw: Record<string, string> = {};
@@ -62,11 +62,11 @@ export const storeTrackHandler = async (req: Request, p: Record<string, string>)
   const q = parseWith(trackQuerySchema, raw);
   const upload = Object.fromEntries(Object.entries(q).filter(([, v]) => v !== undefined)) as unknown as TrackUpload;
   upload.fileName = (params.get('fileName') ?? '').slice(0, 200);
-  return jsonResponse(await storeTrack(p.id!, p.trialId!, csv, upload), 201);
+  return jsonResponse(await storeTrack(p.id!, p.trialId!, csv, upload, c.actor), 201);
 };
 
-export const importTrialsHandler = async (req: Request, p: Record<string, string>) => {
+export const importTrialsHandler = async (req: Request, p: Record<string, string>, c: Caller) => {
   const input = parseWith(trialImportSchema, await readJson(req, MAX_IMPORT_BYTES));
-  const result = await importTrials(p.id!, input);
+  const result = await importTrials(p.id!, input, c.actor);
   return jsonResponse(result, input.dryRun ? 200 : 201);
 };

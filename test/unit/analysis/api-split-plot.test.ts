@@ -3,8 +3,13 @@
  * Kenward–Roger denominator df per term) and 400s naming wholePlot. The numbers are checked against
  * statsmodels and the classical split-plot ANOVA in test/reference/analysis/split-plot-reml.test.ts.
  */
-import { describe, expect, it } from 'vitest';
-import { POST } from '@/app/api/v1/analyses/route';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { POST as routePOST } from '@/app/api/v1/analyses/route';
+import { signed, unitDatabase } from '../../support/auth';
+
+// Routes check credentials: a throw-away database holds the test's API token.
+const POST = signed(routePOST);
+beforeAll(unitDatabase);
 
 function post(body: unknown): Promise<Response> {
   return POST(new Request('http://localhost/api/v1/analyses', { method: 'POST', body: JSON.stringify(body), headers: { 'content-type': 'application/json' } }));

@@ -1,6 +1,11 @@
-import { describe, expect, it } from 'vitest';
-import { POST } from '@/app/api/v1/designs/route';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { POST as routePOST } from '@/app/api/v1/designs/route';
+import { signed, unitDatabase } from '../../support/auth';
 import { handleDesignRequest } from '@/server/api/designs';
+
+// Routes check credentials: a throw-away database holds the test's API token.
+const POST = signed(routePOST);
+beforeAll(unitDatabase);
 
 const factors = [
   { name: 'payload', kind: 'continuous', low: 0, high: 2, unit: 'g' },

@@ -1,6 +1,11 @@
-import { describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { handleScheduleRequest } from '@/server/api/schedules';
-import { POST } from '@/app/api/v1/schedules/route';
+import { POST as routePOST } from '@/app/api/v1/schedules/route';
+import { signed, unitDatabase } from '../../support/auth';
+
+// Routes check credentials: a throw-away database holds the test's API token.
+const POST = signed(routePOST);
+beforeAll(unitDatabase);
 
 const body = {
   runs: [

@@ -1,6 +1,11 @@
-import { describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { handleSuggestionRequest } from '@/server/api/suggestions';
-import { POST } from '@/app/api/v1/suggestions/route';
+import { POST as routePOST } from '@/app/api/v1/suggestions/route';
+import { signed, unitDatabase } from '../../support/auth';
+
+// Routes check credentials: a throw-away database holds the test's API token.
+const POST = signed(routePOST);
+beforeAll(unitDatabase);
 
 // Invented scenario: take-off speed (m/s) against spring preload and payload.
 const body = {

@@ -1,7 +1,12 @@
-import { describe, expect, it } from 'vitest';
-import { POST } from '@/app/api/v1/tracks/metrics/route';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { POST as routePOST } from '@/app/api/v1/tracks/metrics/route';
+import { signed, unitDatabase } from '../../support/auth';
 import { handleTrackMetrics, trackQuerySchema } from '@/server/api/tracks';
 import { syntheticTrack } from './synthetic';
+
+// Routes check credentials: a throw-away database holds the test's API token.
+const POST = signed(routePOST);
+beforeAll(unitDatabase);
 
 const track = syntheticTrack({
   hops: [

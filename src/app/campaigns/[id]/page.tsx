@@ -1,3 +1,4 @@
+import { IfMay } from '@/components/role-context';
 import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
 import { DataTable, type ColumnSpec } from '@/components/DataTable';
@@ -95,7 +96,7 @@ export default async function CampaignPage({ params }: { params: Promise<{ id: s
           </p>
         </section>
       </div>
-      <DesignPanel campaignId={id} hasRuns={runs.length > 0} />
+      <IfMay action="plan" otherwise={<p className="muted">Your role may read the design but not change it.</p>}><DesignPanel campaignId={id} hasRuns={runs.length > 0} /></IfMay>
       <section className="panel">
         <h2 style={{ marginTop: 0 }}>Runs</h2>
         {design ? (

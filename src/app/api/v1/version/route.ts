@@ -1,9 +1,8 @@
+import { route } from '@/server/api/http';
 import { buildId } from '@/server/build-id';
 
 export const runtime = 'nodejs';
 export const dynamic = 'force-dynamic';
 
 /** GET /api/v1/version: the running build, never cached (the rig page asks to learn of a new deploy). */
-export function GET() {
-  return Response.json({ buildId: buildId() }, { headers: { 'cache-control': 'no-store' } });
-}
+export const GET = route(async () => ({ buildId: buildId() }));

@@ -1,3 +1,4 @@
+import { IfMay } from '@/components/role-context';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
@@ -22,11 +23,11 @@ export default async function ImportPage({ params }: { params: Promise<{ id: str
         unless you choose to leave the invalid rows out. Imported trials count in the findings and the next-trial proposals like
         any other.
       </p>
-      <ImportTrials
+      <IfMay action="plan" otherwise={<p className="muted">Importing trials needs the planner role; ask an admin.</p>}><ImportTrials
         campaignId={id}
         factors={campaign.factors.map((f) => ({ name: f.name, unit: f.unit, kind: f.kind }))}
         responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit }))}
-      />
+      /></IfMay>
       <p>
         <Link href={`/campaigns/${id}/rigs`}>Back to the rig log</Link>
       </p>

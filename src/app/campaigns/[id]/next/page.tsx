@@ -1,3 +1,4 @@
+import { IfMay } from '@/components/role-context';
 import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
 import { NextTrialPanel } from '@/components/NextTrialPanel';
@@ -21,13 +22,13 @@ export default async function NextTrialsPage({ params, searchParams }: { params:
   return (
     <>
       <CampaignNav id={id} current="/next" name={campaign.name} isDemo={campaign.isDemo} />
-      <SurrogatePanel campaignId={id} responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit }))} units={units} initialJob={initialJob} />
+      <IfMay action="plan" otherwise={<p className="muted">Your role may read proposals but not make them.</p>}><SurrogatePanel campaignId={id} responses={campaign.responses.map((r) => ({ name: r.name, unit: r.unit }))} units={units} initialJob={initialJob} /></IfMay>
       <h2>Most informative trial for the linear model</h2>
       <p className="muted">
         The setting the campaign&apos;s runs know least about: the candidate with the largest prediction variance under the chosen
         model. Accepting it adds a run to the campaign.
       </p>
-      <NextTrialPanel campaignId={id} units={units} />
+      <IfMay action="plan"><NextTrialPanel campaignId={id} units={units} /></IfMay>
       {suggestions.length ? (
         <section className="panel">
           <h2 style={{ marginTop: 0 }}>Earlier proposals</h2>

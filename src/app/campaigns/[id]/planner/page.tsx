@@ -1,3 +1,4 @@
+import { IfMay } from '@/components/role-context';
 import Link from 'next/link';
 import '@/app/plan.css';
 import { notFound } from 'next/navigation';
@@ -42,7 +43,7 @@ export default async function PlannerPage({ params, searchParams }: { params: Pr
         <Link href={`/campaigns/${id}`}>← back to Plan &amp; design</Link>
         {hard.length ? <span className="muted"> Hard-to-change: {hard.map((f) => `${f.name} (${f.changeMinutes} min per change)`).join(', ')}; give whole plots for a split-plot candidate.</span> : null}
       </p>
-      <PlannerPanel campaignId={id} defaults={[base, optimal]} hasRuns={runs.length > 0} initialJobs={initialJobs.some(Boolean) ? initialJobs : []} />
+      <IfMay action="plan" otherwise={<p className="muted">Your role may read the plan but not change it.</p>}><PlannerPanel campaignId={id} defaults={[base, optimal]} hasRuns={runs.length > 0} initialJobs={initialJobs.some(Boolean) ? initialJobs : []} /></IfMay>
     </>
   );
 }

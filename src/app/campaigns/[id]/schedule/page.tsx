@@ -1,3 +1,4 @@
+import { IfMay } from '@/components/role-context';
 import Link from 'next/link';
 import '@/app/plan.css';
 import { notFound } from 'next/navigation';
@@ -67,7 +68,7 @@ export default async function SchedulePage({ params, searchParams }: { params: P
   return (
     <>
       <CampaignNav id={id} current="/schedule" name={campaign.name} isDemo={campaign.isDemo} />
-      <SchedulePanel campaignId={id} defaultStart={today} />
+      <IfMay action="plan" otherwise={<p className="muted">Your role may read the schedule but not change it.</p>}><SchedulePanel campaignId={id} defaultStart={today} /></IfMay>
       {grid && plan.result.assignments.length ? (
         <section className="panel" data-testid="week-grid">
           <div className="sheet-head">
@@ -134,7 +135,7 @@ export default async function SchedulePage({ params, searchParams }: { params: P
           </div>
         </section>
       ) : null}
-      <MovePanel campaignId={id} plots={plots} rigs={campaign.rigs.map((r) => ({ id: r.id, name: r.name }))} factors={factorNames.filter((f) => !campaign.factors.find((x) => x.name === f)?.hardToChange)} />
+      <IfMay action="plan"><MovePanel campaignId={id} plots={plots} rigs={campaign.rigs.map((r) => ({ id: r.id, name: r.name }))} factors={factorNames.filter((f) => !campaign.factors.find((x) => x.name === f)?.hardToChange)} /></IfMay>
       {campaign.rigs.map((rig) => {
         const mine = slots.filter((s) => s.rigId === rig.id);
         const days = new Map<string, typeof mine>();

@@ -1,3 +1,4 @@
+import { IfMay } from '@/components/role-context';
 import { notFound } from 'next/navigation';
 import { CampaignNav } from '@/components/CampaignNav';
 import Link from 'next/link';
@@ -31,6 +32,7 @@ export default async function RigPage({ params }: { params: Promise<{ id: string
       <CampaignNav id={id} current="/rigs" name={campaign.name} isDemo={campaign.isDemo} />
       <h2>Rig log: {rig.name}</h2>
       <SafetyNotice compact />
+      <IfMay action="logTrials" otherwise={<p className="muted" data-testid="read-only">Your role may read this rig log but not log trials; ask an admin for the operator role.</p>}>
       <RigLog
         campaignId={id}
         rigId={rigId}
@@ -40,6 +42,7 @@ export default async function RigPage({ params }: { params: Promise<{ id: string
         queue={queue}
         buildId={buildId()}
       />
+      </IfMay>
       <RigTrials campaignId={id} trials={logged} />
       <p>
         <Link href={`/campaigns/${id}/import`}>Import past trials from a spreadsheet</Link>
