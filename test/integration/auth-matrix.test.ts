@@ -144,6 +144,24 @@ describe('role × route matrix', () => {
     expect(((await revoked.json()) as { error: { message: string } }).error.message).toMatch(/revoked/);
   });
 
+  it('honours a revocation made by another process within the cache time (SALTUS_AUTH_CACHE_MS)', async () => {
+    const saved = process.env.SALTUS_AUTH_CACHE_MS;
+    process.env.SALTUS_AUTH_CACHE_MS = '300';
+    try {
+      const list = handlers.get('GET /api/v1/campaigns')!;
+      const { token } = await createToken({ name: 'revoked-elsewhere', role: 'viewer' }, 'test');
+      const get = () => list(new Request('http://localhost/api/v1/campaigns', { headers: bearer(token) }), { params: Promise.resolve({}) });
+      expect((await get()).status).toBe(200);
+      // as the CLI would: straight to the database, this process's cache not told
+      await (await db()).apiToken.updateMany({ where: { name: 'revoked-elsewhere' }, data: { revokedAt: new Date() } });
+      await new Promise((r) => setTimeout(r, 350));
+      expect((await get()).status).toBe(401);
+    } finally {
+      if (saved === undefined) delete process.env.SALTUS_AUTH_CACHE_MS;
+      else process.env.SALTUS_AUTH_CACHE_MS = saved;
+    }
+  });
+
   describe('sessions and CSRF', () => {
     const login = async (email: string, password: string, headers: Record<string, string> = {}) => {
       const { POST } = (await import('@/app/api/auth/login/route')) as unknown as { POST: Handler };

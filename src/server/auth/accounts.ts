@@ -7,6 +7,7 @@ import { DomainError } from '@/domain/errors';
 import { parseWith } from '@/server/api/validation';
 import { db } from '@/server/db/client';
 import { audit } from '@/server/repos/audit';
+import { forgetCredentials } from './credential-cache';
 import { checkPasswordStrength, hashPassword } from './passwords';
 import { ROLES, type Role } from './roles';
 import { randomSecret, sha256 } from './secrets';
@@ -80,6 +81,7 @@ export async function disableUser(email: string, actor: string): Promise<UserVie
     await audit(tx, actor, 'disable', 'user', u.id, { disabledAt: null }, { disabledAt: u.disabledAt?.toISOString() });
     return u;
   });
+  forgetCredentials();
   return userView(updated);
 }
 
@@ -150,5 +152,6 @@ export async function revokeToken(name: string, actor: string, now = new Date())
     await audit(tx, actor, 'revoke', 'api-token', r.id, { revokedAt: null }, { revokedAt: now.toISOString() });
     return r;
   });
+  forgetCredentials();
   return tokenView(row);
 }

@@ -5,12 +5,13 @@
  * the database does not sign anyone in. Sessions slide: each use within the idle limit pushes the
  * expiry on (written at most every few minutes); the cookie itself lives SESSION_MAX_DAYS at most.
  * Logging out deletes the row. API tokens (`Authorization: Bearer saltus_…`) are checked the same way:
- * SHA-256 of the secret and one lookup by its unique index — never argon2 per request. A revoked
- * token or disabled account is refused from the next request on (no cache, so no revocation delay).
+ * SHA-256 of the secret and one lookup by its unique index — never argon2 per request — and an accepted
+ * credential is then kept in memory for a few seconds (credential-cache.ts states the revocation delay).
  */
 import { db } from '@/server/db/client';
 import { isRole, type Role } from './roles';
 import { TOKEN_PREFIX } from './accounts';
+import { cachedCredential, forgetCredentials, rememberCredential } from './credential-cache';
 import { csrfFor, randomSecret, safeEqual, sha256 } from './secrets';
 
 export const SESSION_COOKIE = 'saltus_session';
@@ -82,8 +83,16 @@ async function authenticateToken(header: string, now: Date): Promise<AuthResult>
   if (!m || !m[1]!.startsWith(TOKEN_PREFIX)) {
     return { ok: false, reason: 'the Authorization header must be "Bearer saltus_…" with a token from `npm run saltus -- token create`' };
   }
+  const hash = sha256(m[1]!);
   const client = await db();
-  const t = await client.apiToken.findUnique({ where: { tokenHash: sha256(m[1]!) }, include: { user: { select: { disabledAt: true } } } });
+  const hit = cachedCredential(hash, now.getTime());
+  if (hit) {
+    if (shouldTouch(hit.id, null, TOKEN_TOUCH_EVERY_MS, now)) {
+      void client.apiToken.update({ where: { id: hit.id }, data: { lastUsedAt: now } }).catch(() => undefined);
+    }
+    return { ok: true, principal: hit.principal };
+  }
+  const t = await client.apiToken.findUnique({ where: { tokenHash: hash }, include: { user: { select: { disabledAt: true } } } });
   if (!t) return { ok: false, reason: 'the API token in the Authorization header is not known; create one with `npm run saltus -- token create`' };
   if (t.revokedAt) return { ok: false, reason: `the API token ${t.name} was revoked; create a new one with \`npm run saltus -- token create\`` };
   if (t.expiresAt && t.expiresAt <= now) return { ok: false, reason: `the API token ${t.name} expired; create a new one with \`npm run saltus -- token create\`` };
@@ -93,12 +102,22 @@ async function authenticateToken(header: string, now: Date): Promise<AuthResult>
     // not awaited: the request does not wait for this bookkeeping write
     void client.apiToken.update({ where: { id: t.id }, data: { lastUsedAt: now } }).catch(() => undefined);
   }
-  return { ok: true, principal: { kind: 'token', actor: `token:${t.name}`, role: t.role, name: t.name } };
+  const principal: Principal = { kind: 'token', actor: `token:${t.name}`, role: t.role, name: t.name };
+  rememberCredential(hash, t.id, principal, t.expiresAt, now.getTime());
+  return { ok: true, principal };
 }
 
 export async function authenticateSession(secret: string, now: Date): Promise<AuthResult> {
+  const hash = sha256(secret);
   const client = await db();
-  const s = await client.session.findUnique({ where: { tokenHash: sha256(secret) }, include: { user: true } });
+  const hit = cachedCredential(hash, now.getTime());
+  if (hit) {
+    if (shouldTouch(hit.id, null, TOUCH_EVERY_MS, now)) {
+      void client.session.update({ where: { id: hit.id }, data: { lastSeenAt: now, expiresAt: new Date(now.getTime() + idleMs()) } }).catch(() => undefined);
+    }
+    return { ok: true, principal: hit.principal };
+  }
+  const s = await client.session.findUnique({ where: { tokenHash: hash }, include: { user: true } });
   const expired = 'your session has ended; sign in again at /login';
   if (!s || s.expiresAt <= now) return { ok: false, reason: expired };
   if (s.user.disabledAt) return { ok: false, reason: 'this account is disabled; ask an admin' };
@@ -106,7 +125,9 @@ export async function authenticateSession(secret: string, now: Date): Promise<Au
   if (shouldTouch(s.id, s.lastSeenAt, TOUCH_EVERY_MS, now)) {
     void client.session.update({ where: { id: s.id }, data: { lastSeenAt: now, expiresAt: new Date(now.getTime() + idleMs()) } }).catch(() => undefined);
   }
-  return { ok: true, principal: { kind: 'session', actor: s.user.email, role: s.user.role, name: s.user.name, sessionSecret: secret } };
+  const principal: Principal = { kind: 'session', actor: s.user.email, role: s.user.role, name: s.user.name, sessionSecret: secret };
+  rememberCredential(hash, s.id, principal, s.expiresAt, now.getTime());
+  return { ok: true, principal };
 }
 
 /** Opens a session for a verified account; returns the cookie secret (never stored) and its CSRF value. */
@@ -122,6 +143,7 @@ export async function openSession(userId: string, userAgent: string, now = new D
 export async function closeSession(secret: string): Promise<void> {
   const client = await db();
   await client.session.deleteMany({ where: { tokenHash: sha256(secret) } });
+  forgetCredentials();
 }
 
 /** Set-Cookie values for a new session, or (secret null) clearing both cookies. */
