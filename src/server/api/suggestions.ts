@@ -29,6 +29,7 @@ export const suggestionRequestSchema = z.object({
   strategy: z.enum(['improve', 'explore', 'refine', 'confirm'], { error: 'strategy must be "improve", "explore", "refine" or "confirm"' }).optional(),
   swapCost: z.record(z.string(), finite.refine((v) => v >= 0, 'a change cost is minutes, zero or more')).optional(),
   feasibilityThreshold: z.number().min(0).max(1).optional(),
+  batch: z.enum(['believer', 'penalised'], { error: 'batch must be "believer" (kriging believer) or "penalised" (local penalisation)' }).optional(),
   seed: z.number().int().min(0).max(2 ** 31 - 1).optional(),
   trialMinutes: z.number().positive().max(24 * 60).optional(),
   constraints: z

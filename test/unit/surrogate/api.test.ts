@@ -71,4 +71,11 @@ describe('POST /api/v1/suggestions: optional fields', () => {
     expect(() => handleSuggestionRequest({ ...body, swapCost: { preload: -1 } })).toThrow(/swapCost/);
     expect(() => handleSuggestionRequest({ ...body, feasibilityThreshold: 2 })).toThrow(/feasibilityThreshold/);
   });
+
+  it('takes the batch method: local penalisation is used when asked, an unknown one names the field', () => {
+    const out = handleSuggestionRequest({ ...body, strategy: 'improve', count: 3, batch: 'penalised', seed: 4 });
+    expect(out.suggestions).toHaveLength(3);
+    expect(out.model.acquisition ?? '').toMatch(/penalis/i);
+    expect(() => handleSuggestionRequest({ ...body, batch: 'greedy' })).toThrow(/batch/);
+  });
 });
