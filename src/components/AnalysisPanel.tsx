@@ -3,6 +3,7 @@ import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
 import { AnalysisView, type AnalysisViewData } from './AnalysisView';
 import { ErrorBox } from './FieldError';
+import { useMay } from './role-context';
 
 export function AnalysisPanel({ campaignId, responses, initial }: { campaignId: string; responses: string[]; initial: AnalysisViewData | null }) {
   const [response, setResponse] = useState(initial?.response ?? responses[0] ?? '');
@@ -10,6 +11,7 @@ export function AnalysisPanel({ campaignId, responses, initial }: { campaignId: 
   const [data, setData] = useState<AnalysisViewData | null>(initial);
   const [error, setError] = useState<ApiError | null>(null);
   const [busy, setBusy] = useState(false);
+  const canFit = useMay('plan');
 
   async function fit(e: React.FormEvent) {
     e.preventDefault();
@@ -23,6 +25,7 @@ export function AnalysisPanel({ campaignId, responses, initial }: { campaignId: 
 
   return (
     <>
+      {canFit ? (
       <form className="panel" onSubmit={fit} noValidate>
         <div className="row">
           <div>
@@ -51,7 +54,8 @@ export function AnalysisPanel({ campaignId, responses, initial }: { campaignId: 
         </div>
         <ErrorBox error={error} />
       </form>
-      {data ? <AnalysisView data={data} /> : <p className="muted">Fit a model to see its coefficients and ANOVA table.</p>}
+      ) : null}
+      {data ? <AnalysisView data={data} /> : <p className="muted">{canFit ? 'Fit a model to see its coefficients and ANOVA table.' : 'No model has been fitted yet; a planner fits one.'}</p>}
     </>
   );
 }
