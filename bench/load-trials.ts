@@ -6,9 +6,10 @@
  * and latency percentiles.
  *
  * Without --think each client sends its next entry as soon as the last is answered (a closed loop: the
- * mean latency is then clients ÷ throughput); with --think each client pauses that long between entries,
- * like an operator between trials. The API token (role operator or above) comes from --token or the
- * environment variable SALTUS_TOKEN and is sent as `Authorization: Bearer <token>` on every request.
+ * mean latency is then clients ÷ throughput); with --think each client pauses about that long between
+ * entries (0.5 to 1.5 times, starting at a random moment), like operators between trials. The API token
+ * (role operator or above) comes from --token or the environment variable SALTUS_TOKEN and is sent as
+ * `Authorization: Bearer <token>` on every request.
  */
 import { randomUUID } from 'node:crypto';
 
@@ -41,6 +42,8 @@ async function post(path: string, body: unknown, headers: Record<string, string>
   return { status: res.status, json: (await res.json().catch(() => null)) as Record<string, unknown> | null };
 }
 
+const pause = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
+
 async function get<T>(path: string): Promise<T> {
   const res = await fetch(base + path, { headers: auth });
   if (!res.ok) throw new Error(`GET ${path}: HTTP ${res.status} ${(await res.text()).slice(0, 300)}`);
@@ -68,6 +71,8 @@ async function main() {
   const started = Date.now();
   await Promise.all(
     Array.from({ length: clients }, async (_, k) => {
+      // Operators do not act in step: each client starts at a random moment of the first pause.
+      if (thinkMs > 0) await pause(Math.random() * thinkMs);
       let i = 0;
       while (Date.now() < deadline && i < 100_000) {
         const key = randomUUID();
@@ -81,7 +86,7 @@ async function main() {
         if (r.status === 201 || r.status === 200) acknowledged.add(key);
         else errors++;
         i++;
-        if (thinkMs > 0) await new Promise((resolve) => setTimeout(resolve, thinkMs));
+        if (thinkMs > 0) await pause(thinkMs * (0.5 + Math.random()));
       }
     }),
   );
