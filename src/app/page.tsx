@@ -2,10 +2,12 @@ import { IfMay } from '@/components/role-context';
 import Link from 'next/link';
 import { SafetyNotice } from '@/components/SafetyNotice';
 import { listCampaigns } from '@/server/repos/campaigns';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 export default async function Home() {
+  await requirePagePrincipal();
   const campaigns = await listCampaigns();
   return (
     <>

@@ -6,6 +6,7 @@ import { DesignPanel } from '@/components/DesignPanel';
 import { isDomainError } from '@/domain/errors';
 import { getCampaign, type CampaignView } from '@/server/repos/campaigns';
 import { latestDesign, listRuns } from '@/server/repos/runs';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
@@ -25,6 +26,7 @@ function factorRange(f: CampaignView['factors'][number]): string {
 }
 
 export default async function CampaignPage({ params }: { params: Promise<{ id: string }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   const campaign = await load(id);
   if (!campaign) notFound();

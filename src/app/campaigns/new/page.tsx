@@ -1,7 +1,9 @@
 import { IfMay } from '@/components/role-context';
 import { CampaignForm } from '@/components/CampaignForm';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
-export default function NewCampaignPage() {
+export default async function NewCampaignPage() {
+  await requirePagePrincipal();
   return (
     <>
       <h1>New campaign</h1>

@@ -6,10 +6,12 @@ import { isDomainError } from '@/domain/errors';
 import { observationFields } from '@/domain/metrics/standard-readings';
 import { latestAnalysis } from '@/server/repos/analyses';
 import { getCampaign } from '@/server/repos/campaigns';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 export default async function AnalysisPage({ params }: { params: Promise<{ id: string }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   const campaign = await getCampaign(id).catch((e) => {
     if (isDomainError(e) && e.code === 'not_found') notFound();

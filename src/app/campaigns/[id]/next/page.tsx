@@ -6,10 +6,12 @@ import { SurrogatePanel } from '@/components/SurrogatePanel';
 import { isDomainError } from '@/domain/errors';
 import { getCampaign } from '@/server/repos/campaigns';
 import { listSuggestions } from '@/server/repos/suggestions';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 export default async function NextTrialsPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ job?: string | string[] }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   const jobParam = (await searchParams).job;
   const initialJob = typeof jobParam === 'string' && /^[A-Za-z0-9_-]{1,64}$/.test(jobParam) ? jobParam : null;

@@ -8,10 +8,12 @@ import { isDomainError } from '@/domain/errors';
 import { compileModel, standardTerms } from '@/domain/factors';
 import { domainFactors, getCampaign } from '@/server/repos/campaigns';
 import { listRuns } from '@/server/repos/runs';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 export default async function PlannerPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ jobs?: string | string[] }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   // Candidate searches still running or finished, by candidate position (the panel puts them in the URL).
   const jobsParam = (await searchParams).jobs;

@@ -4,11 +4,13 @@ import { PrintButton } from '@/components/PrintButton';
 import { isDomainError } from '@/domain/errors';
 import { RIG_COLUMN, WHOLE_PLOT_COLUMN, campaignData, latestAnalysis } from '@/server/repos/analyses';
 import { getCampaign } from '@/server/repos/campaigns';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 /** The campaign's findings on paper: every response's latest fit, its plots and tables, and the data used. */
 export default async function ReportPage({ params }: { params: Promise<{ id: string }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   const campaign = await getCampaign(id).catch((e) => {
     if (isDomainError(e) && e.code === 'not_found') notFound();

@@ -4,10 +4,12 @@ import { CampaignNav } from '@/components/CampaignNav';
 import { SafetyNotice } from '@/components/SafetyNotice';
 import { isDomainError } from '@/domain/errors';
 import { getCampaign } from '@/server/repos/campaigns';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 export default async function RigsPage({ params }: { params: Promise<{ id: string }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   const campaign = await getCampaign(id).catch((e) => {
     if (isDomainError(e) && e.code === 'not_found') notFound();

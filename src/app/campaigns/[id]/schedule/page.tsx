@@ -10,6 +10,7 @@ import { addCalendarDays, clockInZone, dayInZone, weekGrid } from '@/domain/sche
 import { MOVABLE_STATES } from '@/server/plan/week-plan';
 import { listSlots } from '@/server/repos/schedule';
 import { loadPlan } from '@/server/repos/week-plan';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
@@ -24,6 +25,7 @@ function dayTitle(day: string): string {
 }
 
 export default async function SchedulePage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ from?: string }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   const query = await searchParams;
   const from = query.from && /^\d{4}-\d{2}-\d{2}$/.test(query.from) ? query.from : undefined;

@@ -10,10 +10,12 @@ import { buildId } from '@/server/build-id';
 import { getCampaign } from '@/server/repos/campaigns';
 import { rigTrials } from '@/server/repos/rig-log';
 import { listRuns } from '@/server/repos/runs';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 export default async function RigPage({ params }: { params: Promise<{ id: string; rigId: string }> }) {
+  await requirePagePrincipal();
   const { id, rigId } = await params;
   const campaign = await getCampaign(id).catch((e) => {
     if (isDomainError(e) && e.code === 'not_found') notFound();

@@ -6,12 +6,14 @@ import { SheetPrintButton } from '@/components/SheetPrintButton';
 import { isDomainError } from '@/domain/errors';
 import { addCalendarDays, daySheet } from '@/domain/schedule';
 import { loadPlan } from '@/server/repos/week-plan';
+import { requirePagePrincipal } from '@/server/auth/page-session';
 
 export const dynamic = 'force-dynamic';
 
 const hm = (minutes: number) => `${Math.floor(minutes / 60)} h ${String(Math.round(minutes % 60)).padStart(2, '0')} min`;
 
 export default async function DaySheetPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ rig?: string; day?: string }> }) {
+  await requirePagePrincipal();
   const { id } = await params;
   const q = await searchParams;
   const plan = await loadPlan(id).catch((e) => {
