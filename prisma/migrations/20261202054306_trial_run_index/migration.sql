@@ -1,0 +1,2 @@
+-- CreateIndex
+CREATE INDEX "Trial_runId_idx" ON "Trial"("runId");
