@@ -16,7 +16,8 @@ import { importTrials } from '@/server/repos/imports';
 import { getTrial, logTrial } from '@/server/repos/rig-log';
 import { commitDesign, listRuns } from '@/server/repos/runs';
 import { storeMcapTrack, storeTrack } from '@/server/repos/tracks';
-import { McapWriter, type IWritable } from '@mcap/core';
+import { McapWriter } from '@mcap/core';
+import { MemoryWritable } from '../unit/tracks/mcap-build';
 import { amendTrial } from '@/server/repos/trials';
 import { freshDatabase } from './database';
 
@@ -64,28 +65,6 @@ function ballisticTrackCsv(apex: number, hops: number, forwardSpeed: number): st
     else lines.push(`${(t * 1000).toFixed(3)},${(x * 1000).toFixed(4)},0,${(z * 1000).toFixed(4)}`);
   }
   return lines.join('\n') + '\n';
-}
-
-/** An in-memory sink for @mcap/core's writer. */
-class MemoryWritable implements IWritable {
-  private parts: Uint8Array[] = [];
-  private size = 0n;
-  async write(buffer: Uint8Array): Promise<void> {
-    this.parts.push(buffer.slice());
-    this.size += BigInt(buffer.byteLength);
-  }
-  position(): bigint {
-    return this.size;
-  }
-  bytes(): Uint8Array {
-    const out = new Uint8Array(Number(this.size));
-    let at = 0;
-    for (const p of this.parts) {
-      out.set(p, at);
-      at += p.byteLength;
-    }
-    return out;
-  }
 }
 
 /** The same ballistic track as an MCAP log: JSON pose messages on /robot/pose, metres and seconds. */

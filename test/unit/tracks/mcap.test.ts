@@ -1,29 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { McapWriter, type IWritable } from '@mcap/core';
+import { McapWriter } from '@mcap/core';
+import { MemoryWritable } from './mcap-build';
 import { mcapTrackMetrics, readMcapPoses } from '@/domain/tracks/mcap';
 import { syntheticTrack } from './synthetic';
-
-/** An in-memory sink for @mcap/core's writer. */
-class MemoryWritable implements IWritable {
-  private parts: Uint8Array[] = [];
-  private size = 0n;
-  async write(buffer: Uint8Array): Promise<void> {
-    this.parts.push(buffer.slice());
-    this.size += BigInt(buffer.byteLength);
-  }
-  position(): bigint {
-    return this.size;
-  }
-  bytes(): Uint8Array {
-    const out = new Uint8Array(Number(this.size));
-    let at = 0;
-    for (const p of this.parts) {
-      out.set(p, at);
-      at += p.byteLength;
-    }
-    return out;
-  }
-}
 
 type Shape = 'flat' | 'stamped';
 
