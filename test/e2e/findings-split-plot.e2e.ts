@@ -22,7 +22,7 @@ describe('split-plot findings on a tablet', () => {
     page = await tabletPage(browser);
     page.on('pageerror', (e) => errors.push(e.message));
     const post = async (url: string, body: unknown, headers: Record<string, string> = {}) => {
-      const res = await fetch(`${app.baseUrl}${url}`, { method: 'POST', body: JSON.stringify(body), headers: { 'content-type': 'application/json', ...headers } });
+      const res = await app.fetch(`${app.baseUrl}${url}`, { method: 'POST', body: JSON.stringify(body), headers: { 'content-type': 'application/json', ...headers } });
       if (!res.ok) throw new Error(`${url}: ${res.status} ${await res.text()}`);
       return res.json() as Promise<Record<string, unknown>>;
     };
@@ -39,7 +39,7 @@ describe('split-plot findings on a tablet', () => {
     const c = campaign.campaign ?? (campaign as { id: string; rigs: { id: string }[] });
     id = c.id;
     await post(`/api/v1/campaigns/${id}/designs`, { method: 'optimal', model: 'main-effects', runs: 16, wholePlots: 8, seed: 3 });
-    const { runs } = (await (await fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as {
+    const { runs } = (await (await app.fetch(`${app.baseUrl}/api/v1/campaigns/${id}/runs`)).json()) as {
       runs: { id: string; plannedOrder: number; wholePlot: number | null; values: Record<string, number> }[];
     };
     runs.sort((a, b) => a.plannedOrder - b.plannedOrder);

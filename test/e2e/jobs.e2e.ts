@@ -22,7 +22,7 @@ describe('design searches as jobs on a tablet', () => {
     browser = await launchBrowser();
     page = await tabletPage(browser);
     page.on('pageerror', (e) => errors.push(e.message));
-    const list = (await (await fetch(`${app.baseUrl}/api/v1/campaigns`)).json()) as { campaigns: { id: string }[] };
+    const list = (await (await app.fetch(`${app.baseUrl}/api/v1/campaigns`)).json()) as { campaigns: { id: string }[] };
     id = list.campaigns[0]!.id;
   });
 
@@ -80,7 +80,7 @@ describe('design searches as jobs on a tablet', () => {
   });
 
   it('3 · the stateless design route still answers an optimal design directly', async () => {
-    const res = await fetch(`${app.baseUrl}/api/v1/designs`, {
+    const res = await app.fetch(`${app.baseUrl}/api/v1/designs`, {
       method: 'POST',
       headers: { 'content-type': 'application/json' },
       body: JSON.stringify({
