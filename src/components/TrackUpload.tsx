@@ -152,20 +152,9 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
                   <input id={`${prefix}-topic`} value={topic} onChange={(e) => setTopic(e.target.value)} placeholder="/robot/pose" aria-invalid={error?.field === 'topic' || undefined} />
                 )}
               </div>
-              <div>
-                <label htmlFor={`${prefix}-mtx`}>Target x (m, optional)</label>
-                <input id={`${prefix}-mtx`} inputMode="decimal" value={targetX} onChange={(e) => setTargetX(e.target.value)} />
-              </div>
-              <div>
-                <label htmlFor={`${prefix}-mty`}>Target y (m, optional)</label>
-                <input id={`${prefix}-mty`} inputMode="decimal" value={targetY} onChange={(e) => setTargetY(e.target.value)} />
-              </div>
+              <TargetFields prefix={prefix} unit="m" x={targetX} y={targetY} setX={setTargetX} setY={setTargetY} />
             </div>
-            <p>
-              <button type="submit" className="btn" disabled={busy}>
-                Compute hops and store track
-              </button>
-            </p>
+            <SubmitTrack busy={busy} />
           </>
         ) : null}
         {header.length ? (
@@ -200,20 +189,9 @@ export function TrackUpload({ campaignId, trialId, runNumber }: { campaignId: st
                   <option value="ms">ms</option>
                 </select>
               </div>
-              <div>
-                <label htmlFor={`${prefix}-tx`}>Target x ({lengthUnit}, optional)</label>
-                <input id={`${prefix}-tx`} inputMode="decimal" value={targetX} onChange={(e) => setTargetX(e.target.value)} />
-              </div>
-              <div>
-                <label htmlFor={`${prefix}-ty`}>Target y ({lengthUnit}, optional)</label>
-                <input id={`${prefix}-ty`} inputMode="decimal" value={targetY} onChange={(e) => setTargetY(e.target.value)} />
-              </div>
+              <TargetFields prefix={prefix} unit={lengthUnit} x={targetX} y={targetY} setX={setTargetX} setY={setTargetY} />
             </div>
-            <p>
-              <button type="submit" className="btn" disabled={busy}>
-                Compute hops and store track
-              </button>
-            </p>
+            <SubmitTrack busy={busy} />
           </>
         ) : null}
       </form>
@@ -230,6 +208,32 @@ interface HeightSamples {
 }
 
 /** Samples of the chosen CSV in s and m, for the plot (null when the file cannot be read). */
+/** The optional landing target, in the unit the track's positions are read in. */
+function TargetFields({ prefix, unit, x, y, setX, setY }: { prefix: string; unit: string; x: string; y: string; setX: (v: string) => void; setY: (v: string) => void }) {
+  return (
+    <>
+      <div>
+        <label htmlFor={`${prefix}-tx`}>Target x ({unit}, optional)</label>
+        <input id={`${prefix}-tx`} inputMode="decimal" value={x} onChange={(e) => setX(e.target.value)} />
+      </div>
+      <div>
+        <label htmlFor={`${prefix}-ty`}>Target y ({unit}, optional)</label>
+        <input id={`${prefix}-ty`} inputMode="decimal" value={y} onChange={(e) => setY(e.target.value)} />
+      </div>
+    </>
+  );
+}
+
+function SubmitTrack({ busy }: { busy: boolean }) {
+  return (
+    <p>
+      <button type="submit" className="btn" disabled={busy}>
+        Compute hops and store track
+      </button>
+    </p>
+  );
+}
+
 function csvSamples(csv: string, columns: { time: string; x: string; y: string; z: string }, lengthUnit: 'm' | 'mm', timeUnit: 's' | 'ms'): HeightSamples | null {
   try {
     return parseTrackCsv(new TextEncoder().encode(csv), columns, { timeScale: timeUnit === 'ms' ? 1e-3 : 1, lengthScale: lengthUnit === 'mm' ? 1e-3 : 1 });

@@ -29,6 +29,20 @@ function extent(values: number[], pad = 0.05): [number, number] {
   return [lo - d, hi + d];
 }
 
+/** The x title under the plot and the y title turned along the left edge. */
+function AxisTitles({ xLabel, yLabel }: { xLabel: string; yLabel: string }) {
+  return (
+    <>
+      <text x={(M.left + W - M.right) / 2} y={H - 6} textAnchor="middle" fill="#1d2428">
+        {xLabel}
+      </text>
+      <text transform={`translate(12 ${(M.top + H - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fill="#1d2428">
+        {yLabel}
+      </text>
+    </>
+  );
+}
+
 function Axes({ x, y, xLabel, yLabel }: { x: ScaleLinear<number, number>; y: ScaleLinear<number, number>; xLabel: string; yLabel: string }) {
   return (
     <g fontSize={10} fill="#5b676e">
@@ -47,12 +61,7 @@ function Axes({ x, y, xLabel, yLabel }: { x: ScaleLinear<number, number>; y: Sca
           </text>
         </g>
       ))}
-      <text x={(M.left + W - M.right) / 2} y={H - 6} textAnchor="middle" fill="#1d2428">
-        {xLabel}
-      </text>
-      <text transform={`translate(12 ${(M.top + H - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fill="#1d2428">
-        {yLabel}
-      </text>
+      <AxisTitles xLabel={xLabel} yLabel={yLabel} />
     </g>
   );
 }
@@ -252,12 +261,7 @@ export function InteractionChart({ title, levelsA, lines, xLabel, yLabel }: { ti
               {fmt(t)}
             </text>
           ))}
-          <text x={(M.left + W - M.right) / 2} y={H - 6} textAnchor="middle" fill="#1d2428">
-            {xLabel}
-          </text>
-          <text transform={`translate(12 ${(M.top + H - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fill="#1d2428">
-            {yLabel}
-          </text>
+          <AxisTitles xLabel={xLabel} yLabel={yLabel} />
         </g>
         {lines.map((l, k) => (
           <g key={String(l.levelB)}>
@@ -314,12 +318,7 @@ export function GroupedPoints({ title, groups, xLabel, yLabel }: { title: string
               </text>
             ) : null,
           )}
-          <text x={(M.left + W - M.right) / 2} y={H - 6} textAnchor="middle" fill="#1d2428">
-            {xLabel}
-          </text>
-          <text transform={`translate(12 ${(M.top + H - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fill="#1d2428">
-            {yLabel}
-          </text>
+          <AxisTitles xLabel={xLabel} yLabel={yLabel} />
         </g>
         <line x1={M.left} x2={W - M.right} y1={y(0)} y2={y(0)} stroke="#c0392b" strokeDasharray="4 3" />
         {groups.map((g) => {
