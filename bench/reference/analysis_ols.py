@@ -1,11 +1,17 @@
 """Reference for bench/cases/analysis.ts: OLS with per-term tests on 100,000 rows x 30 terms with
 statsmodels, and numpy's lstsq on the same matrix. The data come from the same fixed formula as the
 TypeScript case. Prints one JSON line {"seconds": statsmodels median, "lstsq_seconds": ..., "cpu_seconds": ..., ...}
-(wall-clock medians, and processor-time medians for comparison under load)."""
+(wall-clock medians, and processor-time medians for comparison under load).
+
+With the argument `records`, both start from the same data as 100,000 records (one dict per run, as the
+TypeScript API receives rows): a pandas DataFrame is built from the records, then statsmodels OLS and
+lstsq run on its columns."""
 import json
+import sys
 import time
 
 import numpy as np
+import pandas as pd
 import statsmodels.api as sm
 
 N = 100_000
@@ -52,7 +58,30 @@ def median_time(fn, repeats=5, warmup=1):
     return float(np.median(times)), float(np.median(cpu))
 
 
+def from_records(records, columns):
+    frame = pd.DataFrame.from_records(records)
+    X = np.empty((len(frame), len(columns) + 1))
+    X[:, 0] = 1.0
+    X[:, 1:] = frame[columns].to_numpy(dtype=np.float64)
+    return X, frame["y"].to_numpy(dtype=np.float64)
+
+
+def main_records():
+    X, y = make_data()
+    columns = [f"x{j}" for j in range(1, P + 1)]
+    records = [dict(zip(columns + ["y"], [*row[1:], yi])) for row, yi in zip(X.tolist(), y.tolist())]
+    sm_seconds, sm_cpu = median_time(lambda: statsmodels_fit(*from_records(records, columns)))
+    lstsq_seconds, lstsq_cpu = median_time(lambda: lstsq_fit(*from_records(records, columns)))
+    res, _ = statsmodels_fit(*from_records(records, columns))
+    print(json.dumps({"seconds": sm_seconds, "lstsq_seconds": lstsq_seconds,
+                      "cpu_seconds": round(sm_cpu, 4), "lstsq_cpu_seconds": round(lstsq_cpu, 4),
+                      "rsquared": float(res.rsquared), "b1": float(res.params[1])}))
+
+
 def main():
+    if sys.argv[1:] == ["records"]:
+        main_records()
+        return
     X, y = make_data()
     sm_seconds, sm_cpu = median_time(lambda: statsmodels_fit(X, y))
     lstsq_seconds, lstsq_cpu = median_time(lambda: lstsq_fit(X, y))

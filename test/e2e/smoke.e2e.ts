@@ -28,6 +28,16 @@ describe('smoke: the built app on a tablet', () => {
     expect(await res.json()).toMatchObject({ status: 'ok' });
   });
 
+  it('loads the helper thread that shares large least-squares fits (analysisThreads 2)', async () => {
+    // The production server starts it at boot (instrumentation); it loads in about a second.
+    let threads = 0;
+    for (let i = 0; i < 60 && threads !== 2; i++) {
+      threads = ((await (await fetch(`${app!.baseUrl}/api/health`)).json()) as { analysisThreads: number }).analysisThreads;
+      if (threads !== 2) await new Promise((r) => setTimeout(r, 500));
+    }
+    expect(threads).toBe(2);
+  });
+
   it('renders the home page at a tablet viewport', async () => {
     const page = await tabletPage(browser!);
     const scriptErrors: string[] = [];

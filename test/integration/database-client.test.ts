@@ -57,6 +57,8 @@ describe(`database client on ${config.provider}`, () => {
   it('GET /api/health answers {"status":"ok"} from the migrated database', async () => {
     const res = await health();
     expect(res.status).toBe(200);
-    expect(await res.json()).toEqual({ status: 'ok' });
+    const body = await res.json();
+    expect(body).toMatchObject({ status: 'ok' });
+    expect([1, 2]).toContain(body.analysisThreads);
   });
 });

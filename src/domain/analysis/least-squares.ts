@@ -8,7 +8,7 @@
 // Björck (1967), BIT 7:257-278 (iterative refinement of linear least squares via the augmented system)
 // Björck (1987), Linear Algebra Appl. 88/89:31-48 (corrected semi-normal equations)
 import { dot2 } from './compensated';
-import { chunkedTriangle } from './tall-qr';
+import { largeColumnArray, largeTriangle } from './tall-qr';
 
 export interface LeastSquaresOptions {
   /** A column whose part not explained by the columns before it is at or below rankTolerance of its norm is aliased. */
@@ -407,7 +407,7 @@ function directStart(x: Float64Array, yv: Float64Array, n: number, p: number, op
  */
 function chunkedStart(x: Float64Array, yv: Float64Array, n: number, p: number, options: LeastSquaresOptions): StartingSolution {
   const q = p + 1;
-  const t = chunkedTriangle(x, yv, n, p);
+  const t = largeTriangle(x, yv, n, p);
   const r0 = new Float64Array(p * p);
   for (let j = 0; j < p; j++) for (let i = 0; i <= j; i++) r0[j * p + i] = t[j * q + i]!;
   // The rank tolerance is that of the n × p problem.
@@ -432,13 +432,48 @@ function residualsInto(r: Float64Array, x: Float64Array, yv: Float64Array, qr: P
   if (g) g.fill(0);
   for (let i0 = 0; i0 < n; i0 += RESIDUAL_BLOCK) {
     const i1 = Math.min(n, i0 + RESIDUAL_BLOCK);
-    for (let k = 0; k < rank; k++) {
+    // Four columns per pass over the block of r (one load and store of r for four products).
+    let k = 0;
+    for (; k + 3 < rank; k += 4) {
+      const o0 = pivot[k]! * n;
+      const o1 = pivot[k + 1]! * n;
+      const o2 = pivot[k + 2]! * n;
+      const o3 = pivot[k + 3]! * n;
+      const b0 = ck[k]!;
+      const b1 = ck[k + 1]!;
+      const b2 = ck[k + 2]!;
+      const b3 = ck[k + 3]!;
+      for (let i = i0; i < i1; i++) r[i] -= x[o0 + i]! * b0 + x[o1 + i]! * b1 + x[o2 + i]! * b2 + x[o3 + i]! * b3;
+    }
+    for (; k < rank; k++) {
       const off = pivot[k]! * n;
       const b = ck[k]!;
       for (let i = i0; i < i1; i++) r[i] -= x[off + i]! * b;
     }
     if (!g) continue;
-    for (let k = 0; k < rank; k++) {
+    k = 0;
+    for (; k + 3 < rank; k += 4) {
+      const o0 = pivot[k]! * n;
+      const o1 = pivot[k + 1]! * n;
+      const o2 = pivot[k + 2]! * n;
+      const o3 = pivot[k + 3]! * n;
+      let s0 = 0;
+      let s1 = 0;
+      let s2 = 0;
+      let s3 = 0;
+      for (let i = i0; i < i1; i++) {
+        const ri = r[i]!;
+        s0 += x[o0 + i]! * ri;
+        s1 += x[o1 + i]! * ri;
+        s2 += x[o2 + i]! * ri;
+        s3 += x[o3 + i]! * ri;
+      }
+      g[k] += s0;
+      g[k + 1] += s1;
+      g[k + 2] += s2;
+      g[k + 3] += s3;
+    }
+    for (; k < rank; k++) {
       const off = pivot[k]! * n;
       let s = 0;
       for (let i = i0; i < i1; i++) s += x[off + i]! * r[i]!;
@@ -453,7 +488,8 @@ function residualsInto(r: Float64Array, x: Float64Array, yv: Float64Array, qr: P
  * numerical rank) get NaN coefficients; the others are the fit on the estimable basis.
  */
 export function leastSquares(x: Float64Array, y: ArrayLike<number>, n: number, p: number, options: LeastSquaresOptions = {}): LeastSquaresFit {
-  const yv = Float64Array.from(y);
+  const yv = largeColumnArray(n);
+  yv.set(y);
   // Large problems: the triangle of [X y] by chunks, then pivoting and rank detection on it; used
   // unless the conditioning calls for refinement, which needs the reflectors of X itself.
   let start = chunkedEligible(n, p, options) ? chunkedStart(x, yv, n, p, options) : null;

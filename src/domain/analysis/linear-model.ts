@@ -134,10 +134,15 @@ function pureError(frame: ModelFrame, y: Float64Array): { ss: number; df: number
  * is taken as the decimal it was written as, so its low-order digits survive the subtraction.
  */
 function shiftedResponse(y: Float64Array, shift: number): Float64Array {
-  const out = y.map((v) => v - shift);
+  const n = y.length;
+  const out = new Float64Array(n);
   let ss = 0;
-  for (const d of out) ss += d * d;
-  const rms = Math.sqrt(ss / out.length);
+  for (let i = 0; i < n; i++) {
+    const d = y[i]! - shift;
+    out[i] = d;
+    ss += d * d;
+  }
+  const rms = Math.sqrt(ss / n);
   if (Math.abs(shift) > 1e4 * rms) {
     for (let i = 0; i < y.length; i++) out[i] = out[i]! + decimalRemainder(y[i]!);
   }
@@ -159,7 +164,9 @@ export function fitLinearModel(frame: ModelFrame, options: LeastSquaresOptions =
   }
   const shiftedFitted = fit.fitted;
   if (shift !== 0) {
-    fit.fitted = shiftedFitted.map((v) => v + shift);
+    const fitted = new Float64Array(n);
+    for (let i = 0; i < n; i++) fitted[i] = shiftedFitted[i]! + shift;
+    fit.fitted = fitted;
     fit.coefficients[0] += shift;
   }
   const rank = fit.rank;

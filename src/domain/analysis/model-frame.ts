@@ -13,6 +13,7 @@ import {
   type ModelTerm,
 } from '../factors';
 import { productRemainder } from './compensated';
+import { largeColumnArray } from './tall-qr';
 import type { AnalysisRequest, Coding, DataRow } from './types';
 
 export interface ModelFrame {
@@ -218,7 +219,7 @@ export function buildModelFrame(request: AnalysisRequest): ModelFrame {
     for (let t = 0; t < n; t++) for (let j = 0; j < k; j++) v[t * k + j] = factorColumns[j]![t]!;
     return (valuesCache = v);
   };
-  const x = new Float64Array(n * p);
+  const x = largeColumnArray(n * p);
   if (factors.every((f) => f.kind !== 'categorical')) {
     // Column by column: each column is a product of factor powers.
     let col = 0;
@@ -280,7 +281,7 @@ function numericFrame(request: AnalysisRequest, intercept: boolean, parsed: Mode
   const n = data.length;
   const p = terms.length;
   const k = usedNames.length;
-  const x = new Float64Array(n * p);
+  const x = largeColumnArray(n * p);
   // A factor's column: the model-matrix column of its main effect, or a column of its own.
   const factorColumns = usedNames.map((name) => {
     const col = terms.findIndex((t) => t.parts.length === 1 && t.parts[0]!.name === name && t.parts[0]!.power === 1);

@@ -20,10 +20,17 @@ export const CHUNK_ROWS = 128;
  * is ± the norm of the part of y that X leaves unexplained, when X has full column rank).
  */
 export function chunkedTriangle(x: Float64Array, y: Float64Array, n: number, p: number, chunkRows = CHUNK_ROWS): Float64Array {
+  return triangleOfRows(x, y, n, p, 0, n, new Float64Array((p + 1) * (p + 1)), chunkRows);
+}
+
+/**
+ * Rows [from, to) of [X y] folded into the triangle `r` (q × q column-major, zero for a fresh start),
+ * which is updated in place and returned.
+ */
+export function triangleOfRows(x: Float64Array, y: Float64Array, n: number, p: number, from: number, to: number, r: Float64Array, chunkRows = CHUNK_ROWS): Float64Array {
   const q = p + 1;
   const ld = chunkRows;
   const buf = new Float64Array(ld * q);
-  const r = new Float64Array(q * q);
   const h = new Float64Array(2);
 
   /** Reflector for column k: [v0 at R's row k; chunk part in buf], h = [v0, β]; R[k,k] = α. */
@@ -49,8 +56,8 @@ export function chunkedTriangle(x: Float64Array, y: Float64Array, n: number, p: 
     r[k * q + k] = alpha;
   };
 
-  for (let i0 = 0; i0 < n; i0 += ld) {
-    const mc = Math.min(ld, n - i0);
+  for (let i0 = from; i0 < to; i0 += ld) {
+    const mc = Math.min(ld, to - i0);
     for (let j = 0; j < p; j++) buf.set(x.subarray(j * n + i0, j * n + i0 + mc), j * ld);
     buf.set(y.subarray(i0, i0 + mc), p * ld);
     let k = 0;
@@ -231,4 +238,81 @@ export function chunkedTriangle(x: Float64Array, y: Float64Array, n: number, p: 
     if (k < q) reflector(k, mc); // last column (y when q is odd): no trailing columns
   }
   return r;
+}
+
+/**
+ * Rows per block of a large fit. The rows are cut into fixed blocks whose triangles are formed
+ * independently and then folded in block order, so the answer does not depend on which thread
+ * formed which block: one thread or several give the same bits.
+ */
+export const BLOCK_ROWS = 8192;
+
+/** Blocks of n rows (at least one). */
+export function blockCount(n: number, blockRows = BLOCK_ROWS): number {
+  return Math.max(1, Math.ceil(n / blockRows));
+}
+
+/** Block b's triangle, written into `out` (q × q), which is returned. */
+export function blockTriangle(x: Float64Array, y: Float64Array, n: number, p: number, b: number, out: Float64Array, blockRows = BLOCK_ROWS): Float64Array {
+  out.fill(0);
+  return triangleOfRows(x, y, n, p, b * blockRows, Math.min(n, (b + 1) * blockRows), out);
+}
+
+/**
+ * The triangle of the stacked blocks, from their triangles (`blocks` holds k of them, q × q each, in
+ * block order): each next triangle is folded into the running one as q more rows.
+ */
+export function foldTriangles(blocks: Float64Array, k: number, p: number): Float64Array {
+  const q = p + 1;
+  const qq = q * q;
+  const r = blocks.slice(0, qq);
+  for (let b = 1; b < k; b++) {
+    const t = blocks.subarray(b * qq, (b + 1) * qq);
+    // t is a q × q column-major matrix: its first p columns are the X part, its last the y part.
+    triangleOfRows(t.subarray(0, p * q), t.subarray(p * q, qq), q, p, 0, q, r);
+  }
+  return r;
+}
+
+/** Block triangles one after another on this thread, then folded. */
+export function sequentialBlockTriangle(x: Float64Array, y: Float64Array, n: number, p: number): Float64Array {
+  const q = p + 1;
+  const k = blockCount(n);
+  const blocks = new Float64Array(k * q * q);
+  for (let b = 0; b < k; b++) blockTriangle(x, y, n, p, b, blocks.subarray(b * q * q, (b + 1) * q * q));
+  return foldTriangles(blocks, k, p);
+}
+
+/**
+ * How the block triangles of a large fit are formed: on this thread by default; a host with threads
+ * (the server) may install a runner that forms them on several, which must return the same result as
+ * `sequentialBlockTriangle` (same blocks, same fold order).
+ */
+export type TriangleRunner = (x: Float64Array, y: Float64Array, n: number, p: number) => Float64Array;
+
+// Kept on the global object: a bundler may load this module more than once in one process.
+const installed = globalThis as { saltusTriangleRunner?: TriangleRunner };
+
+export function setTriangleRunner(next: TriangleRunner | null): void {
+  installed.saltusTriangleRunner = next ?? undefined;
+}
+
+/** R of [X y] (q × q) for a large fit, by the installed runner. */
+export function largeTriangle(x: Float64Array, y: Float64Array, n: number, p: number): Float64Array {
+  return (installed.saltusTriangleRunner ?? sequentialBlockTriangle)(x, y, n, p);
+}
+
+/**
+ * A Float64Array of the given length that other threads can read without a copy (backed by a
+ * SharedArrayBuffer) when the length is large and the host has shared memory; a plain one otherwise.
+ */
+export function largeColumnArray(length: number, sharedFrom = 1 << 16): Float64Array {
+  if (length >= sharedFrom && typeof SharedArrayBuffer === 'function') {
+    try {
+      return new Float64Array(new SharedArrayBuffer(length * 8));
+    } catch {
+      // Shared memory refused (e.g. a page that is not cross-origin isolated): a plain array.
+    }
+  }
+  return new Float64Array(length);
 }

@@ -1,6 +1,7 @@
 /** POST /api/v1/analyses: the request schema and the handler (stateless). */
 import { z } from 'zod';
 import { analyze, type AnalysisRequest, type AnalysisResult } from '@/domain/analysis';
+import { startAnalysisThreads } from '@/server/compute/triangle-threads';
 import { parseWith } from './validation';
 
 const name = z.string().regex(/^[A-Za-z][A-Za-z0-9_]{0,39}$/, 'a column name starts with a letter and has only letters, digits and _ (at most 40)');
@@ -31,6 +32,8 @@ export type AnalysisRequestInput = z.infer<typeof analysisRequestSchema>;
 
 /** Validate the body, run the analysis. JSON turns non-finite numbers (e.g. F of an exact fit) into null. */
 export function handleAnalysisRequest(body: unknown): AnalysisResult {
+  // Large fits share their least-squares triangle with a helper thread once it has loaded.
+  void startAnalysisThreads();
   const request = parseWith(analysisRequestSchema, body) as AnalysisRequest;
   return analyze(request);
 }

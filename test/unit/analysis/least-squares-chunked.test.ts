@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildModelFrame, fitLinearModel, leastSquares, pivotedQr } from '@/domain/analysis';
-import { chunkedTriangle } from '@/domain/analysis/tall-qr';
+import { BLOCK_ROWS, blockCount, chunkedTriangle, sequentialBlockTriangle } from '@/domain/analysis/tall-qr';
 
 function matrix(n: number, p: number, f: (i: number, j: number) => number): Float64Array {
   const x = new Float64Array(n * p);
@@ -57,6 +57,28 @@ describe('least squares by row chunks', () => {
     const fit = leastSquares(x, y, N, P);
     const rho = t[P * q + P]!;
     expect(Math.abs(rho * rho - fit.residualSumOfSquares) / fit.residualSumOfSquares).toBeLessThan(1e-10);
+  });
+
+  it('block triangles folded in order: RᵀR = [X y]ᵀ[X y], and the same |R| as one pass of chunks', () => {
+    expect(blockCount(N)).toBe(Math.ceil(N / BLOCK_ROWS));
+    expect(blockCount(N)).toBeGreaterThan(2);
+    const q = P + 1;
+    const folded = sequentialBlockTriangle(x, y, N, P);
+    const onePass = chunkedTriangle(x, y, N, P);
+    const col = (j: number) => (j < P ? x.subarray(j * N, (j + 1) * N) : y);
+    for (let a = 0; a < q; a++) {
+      for (let b = a; b < q; b++) {
+        let gram = 0;
+        const ca = col(a);
+        const cb = col(b);
+        for (let i = 0; i < N; i++) gram += ca[i]! * cb[i]!;
+        let rtr = 0;
+        for (let k = 0; k <= a; k++) rtr += folded[a * q + k]! * folded[b * q + k]!;
+        const scale = Math.sqrt(Math.abs(folded[a * q + a]!) * Math.abs(folded[b * q + b]!)) ** 2 + Math.abs(gram);
+        expect(Math.abs(rtr - gram) / scale).toBeLessThan(1e-13);
+      }
+      expect(Math.abs(Math.abs(folded[a * q + a]!) - Math.abs(onePass[a * q + a]!)) / Math.abs(onePass[a * q + a]!)).toBeLessThan(1e-11);
+    }
   });
 
   it('finds the same rank and aliased columns as the whole matrix', () => {

@@ -1,4 +1,5 @@
 import { jsonResponse } from '@/server/api/http';
+import { analysisThreadsInUse } from '@/server/compute/triangle-threads';
 import { db } from '@/server/db/client';
 
 export const runtime = 'nodejs';
@@ -8,7 +9,8 @@ export async function GET() {
   try {
     const client = await db();
     await client.$queryRawUnsafe('SELECT 1');
-    return jsonResponse({ status: 'ok' });
+    // analysisThreads: threads a large least-squares fit uses (2 once the helper thread has loaded).
+    return jsonResponse({ status: 'ok', analysisThreads: analysisThreadsInUse() });
   } catch {
     return jsonResponse({ status: 'error', message: 'the database is not reachable' }, 503);
   }
