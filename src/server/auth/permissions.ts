@@ -60,6 +60,14 @@ export const PERMISSIONS: Record<string, Need> = {
   'POST /api/v1/campaigns/[id]/trials/[trialId]/finish': 'operator',
   'POST /api/v1/campaigns/[id]/trials/[trialId]/amendments': 'operator',
   'POST /api/v1/campaigns/[id]/trials/[trialId]/tracks': 'operator',
+
+  // people and API tokens (the accounts page)
+  'GET /api/v1/users': 'admin',
+  'POST /api/v1/users': 'admin',
+  'POST /api/v1/users/disable': 'admin',
+  'GET /api/v1/tokens': 'admin',
+  'POST /api/v1/tokens': 'admin',
+  'POST /api/v1/tokens/revoke': 'admin',
 };
 
 interface Compiled {
