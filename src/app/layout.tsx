@@ -32,6 +32,7 @@ export default async function RootLayout({ children }: { children: React.ReactNo
             <>
               <Link href="/">Campaigns</Link>
               {may(who.role, 'createCampaign') ? <Link href="/campaigns/new">New campaign</Link> : null}
+              {may(who.role, 'administer') ? <Link href="/accounts">Accounts</Link> : null}
               <AuthBar name={who.name} email={who.actor} role={who.role} />
             </>
           ) : null}
