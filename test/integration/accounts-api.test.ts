@@ -4,6 +4,7 @@
  *    naming the field, and nothing is stored; a disabled person's session and token stop working;
  *  - a signed-in admin cannot disable their own account (refused naming `email`);
  *  - a token's secret is in the creating answer only, never in the list; a revoked token gets 401;
+ *  - malformed bodies are answered 4xx naming a field, and store nothing;
  *  - viewer, operator and planner get 403 on every one of these routes.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -186,6 +187,25 @@ describe('people and API tokens over the API', () => {
     const again = await call('POST /api/v1/tokens/revoke', admin, { name: 'rig-pc' });
     expect(again.status).toBe(404);
     expect(((await again.json()) as ErrorBody).error.field).toBe('name');
+  });
+
+  it('answers malformed bodies with 400 naming a field, never 5xx, and stores nothing', async () => {
+    const before = { users: (await users()).length, tokens: (await tokens()).length };
+    const raw = (key: Key, text: string) => {
+      const [method, path] = key.split(' ') as [string, string];
+      return handlers.get(key)!(new Request(`http://localhost${path}`, { method, headers: { 'content-type': 'application/json', ...admin }, body: text }), noParams);
+    };
+    const posts = (Object.keys(ROUTES) as Key[]).filter((k) => k.startsWith('POST'));
+    for (const key of posts) {
+      for (const text of ['', '{', 'null', '[]', '"x"', '{"email": 5, "name": ["a"], "role": null, "password": {}, "expiresDays": "9"}', JSON.stringify({ email: 'x'.repeat(5000), name: '\u0000', role: 'admin', password: 'p'.repeat(2000) })]) {
+        const res = await raw(key, text);
+        expect(res.status, `${key} with ${text.slice(0, 40)}`).toBeGreaterThanOrEqual(400);
+        expect(res.status, `${key} with ${text.slice(0, 40)}`).toBeLessThan(500);
+        expect(((await res.json()) as ErrorBody).error.field, `${key} with ${text.slice(0, 40)}`).toBeTruthy();
+      }
+    }
+    expect((await users()).length).toBe(before.users);
+    expect((await tokens()).length).toBe(before.tokens);
   });
 
   it('answers 403 to viewer, operator and planner on every route, 401 without credentials', async () => {
