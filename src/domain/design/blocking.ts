@@ -6,9 +6,9 @@
  * share a prime number of levels s (blocks = s^q) are blocked this way.
  */
 // Yates (1937), The Design and Analysis of Factorial Experiments (confounding with blocks); Sun, Wu & Chen (1997), Technometrics 39:298-307 (choice of block generators)
-import { DomainError } from '../errors';
+import { DomainError, invalidInput } from '../errors';
 import { randomInt, seededRandom } from '../random';
-import { definingWords, popcount, type Generator } from './fractional-factorial';
+import { definingWords, parseWord, popcount, type Generator } from './fractional-factorial';
 
 /** An effect over the blocking columns: one coefficient in 0..s−1 per column (first non-zero one is 1). */
 export type EffectVector = number[];
@@ -238,6 +238,35 @@ function depthFirstBlocking(problem: BlockingProblem): BlockingChoice | null {
   return best;
 }
 
+/**
+ * The confounding of generators given in advance (not searched): every normalised non-zero
+ * combination of them is an effect confounded with blocks. Null when they are dependent.
+ */
+export function blockingOfGenerators(problem: BlockingProblem, generators: readonly EffectVector[]): BlockingChoice | null {
+  const { s, m, maxLength } = problem;
+  const q = generators.length;
+  const counts = new Array<number>(maxLength + 1).fill(0);
+  const confounded: number[][] = [];
+  const seen = new Set<number>();
+  for (let code = 1; code < s ** q; code++) {
+    const u = Array.from({ length: q }, (_, i) => Math.floor(code / s ** i) % s);
+    if (u.find((x) => x !== 0) !== 1) continue;
+    let v = new Array<number>(m).fill(0);
+    u.forEach((c, i) => (v = addScaled(v, generators[i]!, c, s)));
+    if (v.every((x) => x === 0)) return null;
+    const nv = normalise(v, s);
+    if (seen.has(key(nv, s))) return null;
+    seen.add(key(nv, s));
+    confounded.push(nv);
+    const wc = problem.wordCounts(nv);
+    for (let l = 0; l < wc.length; l++) counts[Math.min(l, maxLength)]! += wc[l]!;
+  }
+  // Generators first, as in a searched choice.
+  const isGenerator = (v: number[]) => generators.some((g) => key(normalise(g, s), s) === key(v, s));
+  confounded.sort((a, b) => Number(isGenerator(b)) - Number(isGenerator(a)));
+  return { generators: generators.map((g) => normalise(g, s)), confounded, counts };
+}
+
 /** Block (1-based) of a run from its level indices on the blocking columns: the generators' values mod s. */
 export function blockOfLevels(levels: readonly number[], generators: readonly EffectVector[], s: number): number {
   let block = 0;
@@ -267,12 +296,19 @@ export function assertUsableBlocking(
   protectedLength: number,
   confoundedLabels: () => string[],
   hint = 'ask for fewer blocks, or use the main-effects model',
+  given?: { field: string; mainHint: string },
 ): asserts choice is BlockingChoice {
+  const field = given?.field ?? 'blocks';
   if (!choice || (choice.counts[1] ?? 0) > 0) {
+    const mains = choice ? confoundedLabels().filter((l) => !l.includes('*')) : [];
+    const lost = mains.length ? ` (${mains.join(', ')} would be lost)` : '';
     throw new DomainError(
       'unsupported',
-      `${blocks} blocks of this ${runs}-run design would confound a main effect with blocks; ask for fewer blocks or more runs`,
-      'blocks',
+      given
+        ? `these block generators confound the main effect${mains.length > 1 ? 's' : ''} ${mains.join(', ')} with blocks, counting their products and aliases; ${given.mainHint}`
+        : `${blocks} blocks of this ${runs}-run design would confound a main effect with blocks${lost}; ask for fewer blocks or more runs`,
+      field,
+      mains.length ? { confounded: mains } : undefined,
     );
   }
   if (protectedLength >= 2 && (choice.counts[2] ?? 0) > 0) {
@@ -280,7 +316,7 @@ export function assertUsableBlocking(
     throw new DomainError(
       'unsupported',
       `${blocks} blocks of this ${runs}-run design confound the two-factor interaction${two.length > 1 ? 's' : ''} ${two.join(', ')} with blocks; ${hint}`,
-      'blocks',
+      field,
       { confounded: two },
     );
   }
@@ -314,6 +350,11 @@ function wordName(mask: number, names: readonly string[]): string {
  * columns are the base factors, a block effect is a product of them and stands for its whole alias
  * set. `protectedLength` is 1 when only main effects must stay clear of blocks, 2 when two-factor
  * interactions must too. Coded runs are ±1 in every factor.
+ *
+ * `given` names the block generators instead of searching for them: interaction words over the
+ * factors (letters "ABC", or names joined by *), read by parseWord. Then `blocks` must be
+ * 2^given.length, and a run's block is the sign pattern of the words: block 1 + Σ 2^i over the
+ * words i whose product is −1 on that run (block 1: every word +1).
  */
 export function blockTwoLevel(
   k: number,
@@ -322,16 +363,22 @@ export function blockTwoLevel(
   protectedLength: number,
   names: readonly string[],
   hint?: string,
+  given?: readonly string[],
 ): FactorialBlocking {
-  const q = powerOf(blocks, 2);
+  const field = given ? 'blockGenerators' : 'blocks';
+  const q = given ? given.length : powerOf(blocks, 2);
   const runs = 2 ** (k - fraction.length);
   if (q === null) throw new DomainError('unsupported', `blocks of a two-level design are a power of two (2, 4, 8 …) up to ${runs / 2}; got ${blocks}`, 'blocks');
+  if (given && 2 ** given.length !== blocks) {
+    throw new DomainError('invalid_input', `${given.length} block generators give ${2 ** given.length} blocks, but blocks is ${blocks}; give log2(blocks) generators or leave blocks out`, field);
+  }
   const generated = new Set(fraction.map((g) => g.target));
   const base = [...Array(k).keys()].filter((j) => !generated.has(j));
-  if (q > base.length - 1) {
-    throw new DomainError('unsupported', `this ${runs}-run design takes at most ${runs / 2} blocks (of two runs each); got ${blocks}`, 'blocks');
-  }
   const words = definingWords(fraction).map((w) => w.mask);
+  const givenMasks = given ? parseBlockGenerators(given, fraction, base, names) : null;
+  if (q > base.length - 1) {
+    throw new DomainError('unsupported', `this ${runs}-run design takes at most ${runs / 2} blocks (of two runs each); got ${blocks}`, field);
+  }
   const maskOf = (v: EffectVector) => v.reduce((m, c, j) => (c ? m | (1 << base[j]!) : m), 0);
   const aliasSet = (mask: number) => [mask, ...words.map((w) => w ^ mask)].sort((a, b) => popcount(a) - popcount(b) || a - b);
   // Word counts by length of each alias set, computed once per set (2^k word operations in all).
@@ -347,20 +394,81 @@ export function blockTwoLevel(
     }
     return counts;
   };
-  const choice = chooseBlockGenerators({ s: 2, m: base.length, q, maxLength: k, wordCounts });
+  const problem: BlockingProblem = { s: 2, m: base.length, q, maxLength: k, wordCounts };
+  const choice = givenMasks ? blockingOfGenerators(problem, givenMasks.map((g) => g.vector)) : chooseBlockGenerators(problem);
   // Each confounded alias set by its shortest word, with the other words of up to three factors.
   const confounded = () =>
     (choice?.confounded ?? []).map((v) => {
       const [first, ...rest] = aliasSet(maskOf(v));
       return { effect: wordName(first!, names), aliases: rest.filter((m) => popcount(m) <= 3).map((m) => wordName(m, names)) };
     });
-  assertUsableBlocking(choice, blocks, runs, protectedLength, () => confounded().flatMap((c) => [c.effect, ...c.aliases]), hint);
+  const labels = () => confounded().flatMap((c) => [c.effect, ...c.aliases]);
+  if (givenMasks) {
+    const mainHint = `choose generator words whose products${fraction.length ? ' and their aliases' : ''} are all interactions, or give fewer generators`;
+    const twoHint = 'choose generator words whose products all have three or more factors, or use the main-effects model';
+    assertUsableBlocking(choice, blocks, runs, protectedLength, labels, twoHint, { field, mainHint });
+    return {
+      blocks,
+      generators: givenMasks.map((g) => wordName(g.mask, names)),
+      confounded: confounded(),
+      blockOf: (coded) => givenMasks.reduce((b, g, i) => (g.factors.reduce((p, j) => p * Math.sign(coded[j]!), 1) < 0 ? b + 2 ** i : b), 1),
+    };
+  }
+  assertUsableBlocking(choice, blocks, runs, protectedLength, labels, hint);
   return {
     blocks,
     generators: choice.generators.map((v) => wordName(maskOf(v), names)),
     confounded: confounded(),
     blockOf: (coded) => blockOfLevels(base.map((j) => (coded[j]! > 0 ? 0 : 1)), choice.generators, 2),
   };
+}
+
+/** A block generator given by the engineer: its word over all factors and its vector over the base factors. */
+interface GivenBlockGenerator {
+  mask: number;
+  factors: number[];
+  vector: EffectVector;
+}
+
+/**
+ * Read block generator words and check them: known factors, two or more of them, not in the
+ * defining relation of the fraction, independent (no word a product of others, aliases counted).
+ */
+function parseBlockGenerators(texts: readonly string[], fraction: readonly Generator[], base: readonly number[], names: readonly string[]): GivenBlockGenerator[] {
+  const field = 'blockGenerators';
+  const letters = (mask: number) => wordName(mask, names);
+  const out: GivenBlockGenerator[] = [];
+  // Span of the words read so far over the base factors: projected mask → the words it is the product of.
+  const span = new Map<number, number[]>([[0, []]]);
+  texts.forEach((text, i) => {
+    const at = `${field}[${i}]`;
+    if (/^\s*[-+]/.test(text)) throw invalidInput(at, `write a block generator as a word without a sign, e.g. "ABC"; got "${text}"`);
+    const mask = parseWord(text, names, at);
+    if (popcount(mask) < 2) {
+      throw invalidInput(at, `a block generator is an interaction of two or more factors; "${text}" is the main effect of ${letters(mask)}, which blocks would swallow`);
+    }
+    // Replace each generated factor by its generator's word: the same column up to sign.
+    let projected = mask;
+    for (const g of fraction) if ((projected >> g.target) & 1) projected ^= g.mask | (1 << g.target);
+    if (projected === 0) {
+      throw invalidInput(at, `${letters(mask)} is a word of this fraction's defining relation, the same sign on every run, so it cannot split the runs into blocks; choose another interaction`);
+    }
+    const earlier = span.get(projected);
+    if (earlier) {
+      const product = earlier.map((e) => letters(out[e]!.mask)).join(' × ');
+      throw invalidInput(
+        at,
+        `${letters(mask)} is the product of the other block generators ${product}${fraction.length ? ' (aliases counted)' : ''}, so it adds no blocks; give independent generators (no word a product of the others)`,
+      );
+    }
+    for (const [m, idx] of [...span]) span.set(m ^ projected, [...idx, i]);
+    out.push({
+      mask,
+      factors: [...Array(names.length).keys()].filter((j) => (mask >> j) & 1),
+      vector: base.map((j) => (projected >> j) & 1),
+    });
+  });
+  return out;
 }
 
 /**

@@ -62,20 +62,40 @@ function parseLetters(text: string, k: number, field: string): number {
   return mask;
 }
 
+/** One factor of a word: its name, its letter (A, B, C ... skipping I) or its number (1..k). */
+function factorIndex(token: string, factorNames: readonly string[], at: string): number {
+  const k = factorNames.length;
+  const t = token.trim();
+  const named = factorNames.indexOf(t);
+  if (named >= 0) return named;
+  if (/^\d+$/.test(t) && Number(t) >= 1 && Number(t) <= k) return Number(t) - 1;
+  if (t.length === 1 && FACTOR_LETTERS.indexOf(t) >= 0 && FACTOR_LETTERS.indexOf(t) < k) return FACTOR_LETTERS.indexOf(t);
+  throw invalidInput(at, `"${t}" is not a factor name, letter (${FACTOR_LETTERS.slice(0, k)}) or number (1..${k})`);
+}
+
+/**
+ * Read an interaction word as a set of factors (bit j = factor j): letters run together ("ABC"),
+ * or names, letters or numbers joined by * or spaces ("speed*payload", "1 2 3"). A factor named
+ * twice is refused.
+ */
+export function parseWord(text: string, factorNames: readonly string[], at: string): number {
+  const k = factorNames.length;
+  const t = text.trim();
+  const add = (mask: number, j: number) => {
+    if ((mask >> j) & 1) throw invalidInput(at, `${FACTOR_LETTERS[j] ?? factorNames[j]} (${factorNames[j]}) appears twice in "${t}"`);
+    return mask | (1 << j);
+  };
+  if (t.includes('*')) return t.split('*').reduce((m, part) => add(m, factorIndex(part, factorNames, at)), 0);
+  if (/\s/.test(t)) return t.split(/\s+/).reduce((m, part) => add(m, factorIndex(part, factorNames, at)), 0);
+  if (/^\d$/.test(t) || factorNames.includes(t)) return 1 << factorIndex(t, factorNames, at);
+  return parseLetters(t, k, at);
+}
+
 /**
  * Read generators such as "E=ABCD", "E = -ABC", "5 = 1 2 3 4" or "surface=payload*gain". Factors are
  * lettered A, B, C ... (skipping I) or numbered 1, 2, 3 ... in the order given.
  */
 export function parseGenerators(texts: readonly string[], factorNames: readonly string[], field = 'generators'): Generator[] {
-  const k = factorNames.length;
-  const byName = new Map(factorNames.map((n, i) => [n, i]));
-  const one = (token: string, at: string): number => {
-    const t = token.trim();
-    if (byName.has(t)) return byName.get(t)!;
-    if (/^\d+$/.test(t) && Number(t) >= 1 && Number(t) <= k) return Number(t) - 1;
-    if (t.length === 1 && FACTOR_LETTERS.indexOf(t) >= 0 && FACTOR_LETTERS.indexOf(t) < k) return FACTOR_LETTERS.indexOf(t);
-    throw invalidInput(at, `"${t}" is not a factor name, letter (${FACTOR_LETTERS.slice(0, k)}) or number (1..${k})`);
-  };
   const gens = texts.map((text, i) => {
     const at = `${field}[${i}]`;
     const sides = text.split('=');
@@ -91,13 +111,8 @@ export function parseGenerators(texts: readonly string[], factorNames: readonly 
       sign = (sign * -1) as 1 | -1;
       right = right.slice(1).trim();
     } else if (right.startsWith('+')) right = right.slice(1).trim();
-    const target = one(left, at);
-    let mask = 0;
-    if (right.includes('*')) for (const part of right.split('*')) mask |= 1 << one(part, at);
-    else if (/\s/.test(right)) for (const part of right.split(/\s+/)) mask |= 1 << one(part, at);
-    else if (/^\d$/.test(right)) mask = 1 << one(right, at);
-    else if (byName.has(right)) mask = 1 << byName.get(right)!;
-    else mask = parseLetters(right, k, at);
+    const target = factorIndex(left, factorNames, at);
+    const mask = parseWord(right, factorNames, at);
     if (popcount(mask) < 2) throw invalidInput(at, 'a generator is a product of at least two base factors; otherwise two main effects coincide');
     if ((mask >> target) & 1) throw invalidInput(at, 'a generated factor cannot appear in its own generator');
     return { target, mask, sign };

@@ -69,6 +69,14 @@ export function defaultModel(method: DesignSpec['method']): StandardModel {
 
 export const DEFAULT_SEED = 1;
 
+/** Methods whose block generators the request may name (two-level designs only). */
+const GIVEN_GENERATOR_METHODS: readonly DesignSpec['method'][] = ['full-factorial', 'fractional-factorial'];
+
+/** Block generators named by the request, or undefined when the blocks are to be searched for. */
+function givenBlockGenerators(spec: DesignSpec): string[] | undefined {
+  return spec.blockGenerators?.length ? spec.blockGenerators : undefined;
+}
+
 /** Methods that take `blocks`. */
 const BLOCKED_METHODS: readonly DesignSpec['method'][] = ['full-factorial', 'fractional-factorial', 'central-composite', 'optimal'];
 
@@ -81,6 +89,26 @@ function checkSpec(spec: DesignSpec): void {
   if (spec.blocks !== undefined && (!Number.isInteger(spec.blocks) || spec.blocks < 1)) throw invalidInput('blocks', 'blocks must be a whole number of at least 1');
   if (spec.blocks !== undefined && spec.blocks > 1 && !BLOCKED_METHODS.includes(spec.method)) {
     throw new DomainError('unsupported', `blocks apply to ${BLOCKED_METHODS.join(', ')} designs; ${spec.method} designs here are not blocked`, 'blocks');
+  }
+  if (spec.blockGenerators !== undefined) {
+    const given = spec.blockGenerators;
+    if (!Array.isArray(given) || given.some((g) => typeof g !== 'string')) {
+      throw invalidInput('blockGenerators', 'blockGenerators is a list of interaction words over the factor letters, e.g. ["ABC", "CDE"]');
+    }
+    if (given.length > 0 && !GIVEN_GENERATOR_METHODS.includes(spec.method)) {
+      throw new DomainError(
+        'unsupported',
+        `block generators are given for two-level full factorials and fractional factorials; ${spec.method} designs take blocks alone (their blocks are chosen here); leave blockGenerators out`,
+        'blockGenerators',
+      );
+    }
+    const q = given.length;
+    if (q > 0 && spec.blocks !== undefined && spec.blocks !== 2 ** q) {
+      throw invalidInput(
+        'blockGenerators',
+        `${q} block generator${q > 1 ? 's' : ''} give${q > 1 ? '' : 's'} 2^${q} = ${2 ** q} blocks, but blocks is ${spec.blocks}; give as many generators as log2(blocks), or leave blocks out`,
+      );
+    }
   }
   if (spec.blockEffects !== undefined && spec.method !== 'optimal') {
     throw new DomainError('unsupported', 'random block effects are taken into account by the optimal method only; leave blockEffects out or set method to "optimal"', 'blockEffects');
@@ -187,7 +215,7 @@ function fractionalFactorial(spec: DesignSpec, model: StandardModel, extras: Ext
   const pm = fractionRuns(k, generators);
   const toCoded = (row: number[]) => row.map((v, j) => twoLevelCoded(factors[j]!, v));
   if ((spec.blocks ?? 1) > 1) {
-    const blocking = blockTwoLevel(k, generators, spec.blocks!, protectedLength(model), factors.map((f) => f.name));
+    const blocking = blockTwoLevel(k, generators, spec.blocks!, protectedLength(model), factors.map((f) => f.name), undefined, givenBlockGenerators(spec));
     extras.blocking = blocking;
     return blockedFactorialRuns(factors, pm.map((row) => ({ coded: toCoded(row), block: blocking.blockOf(row) })), blocking, spec);
   }
@@ -232,6 +260,23 @@ function construct(
       if ((spec.blocks ?? 1) === 1) return fullFactorialDesign(factors, { model, replicates: spec.replicates, centerPoints: spec.centerPoints });
       const rows = fullFactorialDesign(factors, { model });
       const levelLists = factors.map((f) => codedLevels(f, model === 'quadratic' ? [-1, 0, 1] : [-1, 1]));
+      const given = givenBlockGenerators(spec);
+      if (given) {
+        // Named block generators: a two-level full factorial, each factor's low level −1 and high +1.
+        levelLists.forEach((l, j) => {
+          if (l.length !== 2) {
+            throw new DomainError(
+              'unsupported',
+              `block generators are words of a two-level design, but ${factors[j]!.name} has ${l.length} levels here${model === 'quadratic' ? ' (the quadratic model puts numeric factors at three)' : ''}; leave blockGenerators out to have the blocks chosen, or use two-level factors and the main-effects or interactions model`,
+              'blockGenerators',
+            );
+          }
+        });
+        const blocking = blockTwoLevel(factors.length, [], spec.blocks!, protectedLength(model), factors.map((f) => f.name), undefined, given);
+        extras.blocking = blocking;
+        const signs = (coded: readonly number[]) => coded.map((c, j) => (c === levelLists[j]![0] ? -1 : 1));
+        return blockedFactorialRuns(factors, rows.map((r) => ({ coded: r.coded, block: blocking.blockOf(signs(r.coded)) })), blocking, spec);
+      }
       const blocking = blockFullFactorial(levelLists, spec.blocks!, protectedLength(model), factors.map((f) => f.name));
       extras.blocking = blocking;
       return blockedFactorialRuns(factors, rows.map((r) => ({ coded: r.coded, block: blocking.blockOf(r.coded) })), blocking, spec);
@@ -393,8 +438,11 @@ function markBlockAliases(fraction: FractionSummary, scheme: FactorialBlocking):
  * Build the design a request describes. `options` carries the search controls of optimal designs
  * (progress callback, stop check) that have no place in a JSON request.
  */
-export function generateDesign(spec: DesignSpec, options: OptimalDesignOptions = {}): DesignResult {
-  checkSpec(spec);
+export function generateDesign(request: DesignSpec, options: OptimalDesignOptions = {}): DesignResult {
+  checkSpec(request);
+  // Named block generators set the number of blocks when `blocks` is left out.
+  const q = givenBlockGenerators(request)?.length ?? 0;
+  const spec: DesignSpec = q > 0 && request.blocks === undefined ? { ...request, blocks: 2 ** q } : request;
   const model = spec.model ?? defaultModel(spec.method);
   const seed = spec.seed ?? DEFAULT_SEED;
   const notes: string[] = [];

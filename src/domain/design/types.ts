@@ -42,6 +42,12 @@ export interface DesignSpec {
   replicates?: number;
   blocks?: number;
   /**
+   * Two-level full factorials and fractions: the block generators, as interaction words over the
+   * factor letters (e.g. ["ABC", "CDE"]) or names joined by *; k words give 2^k blocks. Left out,
+   * the generators are chosen by search.
+   */
+  blockGenerators?: string[];
+  /**
    * Optimal designs: blocks as fixed effects (default) or as random effects with variance ratio
    * `varianceRatio` = σ²(block) / σ², like whole plots with no hard-to-change factor.
    */

@@ -27,6 +27,7 @@ export const designSpecSchema = z.object({
   alpha: z.union([z.enum(['rotatable', 'orthogonal', 'face-centred']), z.number().positive().max(10)]).optional(),
   replicates: z.number().int().min(1).max(20).optional(),
   blocks: z.number().int().min(1).max(100).optional(),
+  blockGenerators: z.array(z.string().min(1, 'a block generator is a word such as "ABC"').max(200)).max(6, 'at most 6 block generators (64 blocks)').optional(),
   blockEffects: z.enum(['fixed', 'random']).optional(),
   wholePlots: z.number().int().min(1).max(1000).optional(),
   constraints: z

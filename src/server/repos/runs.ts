@@ -28,6 +28,7 @@ export function campaignDesignSpec(factors: DesignSpec['factors'], input: Campai
     ...(input.resolution !== undefined ? { resolution: input.resolution } : {}),
     ...(input.wholePlots !== undefined ? { wholePlots: input.wholePlots } : {}),
     ...(input.blocks !== undefined ? { blocks: input.blocks } : {}),
+    ...(input.blockGenerators?.length ? { blockGenerators: input.blockGenerators } : {}),
     ...(input.blockEffects !== undefined ? { blockEffects: input.blockEffects } : {}),
     ...(input.varianceRatio !== undefined ? { varianceRatio: input.varianceRatio } : {}),
     ...(input.starts !== undefined ? { starts: input.starts } : {}),

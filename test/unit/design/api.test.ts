@@ -112,3 +112,42 @@ describe('POST /api/v1/designs: optimal and split-plot requests', () => {
     expect(body.error.details.inestimable.length).toBeGreaterThan(0);
   });
 });
+
+describe('POST /api/v1/designs: block generators named in the request', () => {
+  const five = ['payload', 'gain', 'stiffness', 'crouch', 'stride'].map((name) => ({ name, kind: 'continuous', low: 0, high: 1 }));
+
+  it('answers the blocks the generators give, with the generators and the confounded effects in the diagnostics', async () => {
+    const res = await post({ factors: five, method: 'full-factorial', blockGenerators: ['ABC', 'CDE'], seed: 3 });
+    expect(res.status).toBe(200);
+    const body = (await res.json()) as {
+      runs: { coded: number[]; block: number }[];
+      diagnostics: { blocking: { blocks: number; generators: string[]; confounded: { effect: string }[] } };
+    };
+    expect(body.diagnostics.blocking.blocks).toBe(4);
+    expect(body.diagnostics.blocking.generators).toEqual(['payload*gain*stiffness', 'stiffness*crouch*stride']);
+    expect(body.diagnostics.blocking.confounded.map((c) => c.effect).sort()).toEqual(['payload*gain*crouch*stride', 'payload*gain*stiffness', 'stiffness*crouch*stride']);
+    for (const r of body.runs) {
+      const abc = r.coded[0]! * r.coded[1]! * r.coded[2]!;
+      const cde = r.coded[2]! * r.coded[3]! * r.coded[4]!;
+      expect(r.block).toBe(1 + (abc < 0 ? 1 : 0) + (cde < 0 ? 2 : 0));
+    }
+  });
+
+  it('answers 400 naming blockGenerators for bad words, dependent words, lost effects and a disagreeing blocks', async () => {
+    const cases: [Record<string, unknown>, string, RegExp][] = [
+      [{ blockGenerators: ['ABZ'] }, 'blockGenerators[0]', /not one of the factor letters/],
+      [{ blockGenerators: ['ABC', 'CDE', 'ABDE'] }, 'blockGenerators[2]', /product of the other block generators/],
+      [{ blockGenerators: ['ABC', 'AB'] }, 'blockGenerators', /main effect stiffness/],
+      [{ blockGenerators: ['ABC', 'ABD'], model: 'interactions' }, 'blockGenerators', /two-factor interaction stiffness\*crouch/],
+      [{ blockGenerators: ['ABC', 'CDE'], blocks: 2 }, 'blockGenerators', /but blocks is 2/],
+      [{ blockGenerators: 'ABC' }, 'blockGenerators', /.+/],
+    ];
+    for (const [extra, field, message] of cases) {
+      const res = await post({ factors: five, method: 'full-factorial', model: 'main-effects', ...extra });
+      expect(res.status).toBe(400);
+      const json = (await res.json()) as { error: { field: string; message: string } };
+      expect(json.error.field).toBe(field);
+      expect(json.error.message).toMatch(message);
+    }
+  });
+});

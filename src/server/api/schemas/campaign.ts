@@ -145,6 +145,13 @@ export const campaignDesignSchema = z.object({
   resolution: z.number().int().min(3).max(8).optional(),
   wholePlots: z.number().int().min(2).max(500).optional(),
   blocks: z.number().int().min(1).max(50).optional(),
+  /** Two-level full factorials and fractions: block generators as interaction words over the factor letters, e.g. ["ABC", "CDE"]. */
+  blockGenerators: z
+    .array(z.string().trim().min(1, 'a block generator is a word such as "ABC"').max(200, 'a block generator has at most 200 characters'), {
+      error: 'blockGenerators is a list of words such as ["ABC", "CDE"]',
+    })
+    .max(5, 'at most 5 block generators (32 blocks)')
+    .optional(),
   /** Optimal designs: blocks as fixed (default) or random effects; varianceRatio = σ²(block or whole plot) / σ². */
   blockEffects: z.enum(['fixed', 'random'], { error: 'blockEffects must be "fixed" or "random"' }).optional(),
   varianceRatio: z.number().min(0, 'varianceRatio must be at least 0').max(1000, 'varianceRatio must be at most 1000').optional(),
