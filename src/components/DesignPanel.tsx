@@ -18,6 +18,46 @@ const METHODS = [
   ['optimal', 'Optimal design (coordinate exchange)'],
 ] as const;
 
+/** Methods that take a number of blocks, and those (two-level) whose block generators may be named. */
+const BLOCKED = ['full-factorial', 'fractional-factorial', 'central-composite', 'optimal'];
+const TWO_LEVEL = ['full-factorial', 'fractional-factorial'];
+
+/** Block generator words from the text field: separated by commas or semicolons ("ABC, CDE"). */
+export function blockGeneratorWords(text: string): string[] {
+  return text
+    .split(/[,;]/)
+    .map((w) => w.trim())
+    .filter(Boolean);
+}
+
+export interface DesignForm {
+  method: string;
+  model: string;
+  centerPoints: string;
+  runs: string;
+  seed: string;
+  blocks: string;
+  blockGenerators: string;
+}
+
+/** The generator field is shown once blocks are asked for on a two-level design (or text is already in it). */
+export function showsBlockGenerators(f: Pick<DesignForm, 'method' | 'blocks' | 'blockGenerators'>): boolean {
+  return TWO_LEVEL.includes(f.method) && (Number(f.blocks) > 1 || f.blockGenerators.trim() !== '');
+}
+
+/** The campaign design request of the form: only the fields filled in (and shown), as numbers. */
+export function designBody(f: DesignForm): Record<string, unknown> {
+  const body: Record<string, unknown> = { method: f.method };
+  if (f.model) body.model = f.model;
+  if (f.centerPoints.trim()) body.centerPoints = Number(f.centerPoints);
+  if (f.runs.trim()) body.runs = Number(f.runs);
+  if (f.seed.trim()) body.seed = Number(f.seed);
+  if (BLOCKED.includes(f.method) && f.blocks.trim()) body.blocks = Number(f.blocks);
+  const words = blockGeneratorWords(f.blockGenerators);
+  if (showsBlockGenerators(f) && words.length) body.blockGenerators = words;
+  return body;
+}
+
 export function DesignPanel({ campaignId, hasRuns }: { campaignId: string; hasRuns: boolean }) {
   const router = useRouter();
   const [method, setMethod] = useState<string>('full-factorial');
@@ -25,19 +65,21 @@ export function DesignPanel({ campaignId, hasRuns }: { campaignId: string; hasRu
   const [centerPoints, setCenterPoints] = useState('');
   const [runs, setRuns] = useState('');
   const [seed, setSeed] = useState('1');
+  const [blocks, setBlocks] = useState('');
+  const [blockGenerators, setBlockGenerators] = useState('');
   const [error, setError] = useState<ApiError | null>(null);
   const [done, setDone] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
+
+  const takesBlocks = BLOCKED.includes(method);
+  const showGenerators = showsBlockGenerators({ method, blocks, blockGenerators });
+  const generatorError = error?.field?.startsWith('blockGenerators') ? error : null;
 
   async function generate(e: React.FormEvent) {
     e.preventDefault();
     setError(null);
     setDone(null);
-    const body: Record<string, unknown> = { method };
-    if (model) body.model = model;
-    if (centerPoints.trim()) body.centerPoints = Number(centerPoints);
-    if (runs.trim()) body.runs = Number(runs);
-    if (seed.trim()) body.seed = Number(seed);
+    const body = designBody({ method, model, centerPoints, runs, seed, blocks, blockGenerators });
     setBusy(true);
     const res = await postJson<{ version: number; runs: number; withdrawn: number }>(`/api/v1/campaigns/${campaignId}/designs`, body);
     setBusy(false);
@@ -84,9 +126,33 @@ export function DesignPanel({ campaignId, hasRuns }: { campaignId: string; hasRu
           <label htmlFor="d-seed">Seed</label>
           <input id="d-seed" inputMode="numeric" value={seed} onChange={(e) => setSeed(e.target.value)} aria-invalid={error?.field === 'seed' || undefined} />
         </div>
+        {takesBlocks ? (
+          <div className="narrow">
+            <label htmlFor="d-blocks">Blocks</label>
+            <input id="d-blocks" inputMode="numeric" placeholder="1" value={blocks} onChange={(e) => setBlocks(e.target.value)} aria-invalid={error?.field === 'blocks' || undefined} />
+          </div>
+        ) : null}
       </div>
+      {showGenerators ? (
+        <div>
+          <label htmlFor="d-blockgen">Block generators (optional)</label>
+          <input
+            id="d-blockgen"
+            placeholder="e.g. ABC, CDE (empty: chosen for you)"
+            value={blockGenerators}
+            onChange={(e) => setBlockGenerators(e.target.value)}
+            aria-invalid={generatorError ? true : undefined}
+            aria-describedby="d-blockgen-help"
+          />
+          <p id="d-blockgen-help" className="muted" style={{ margin: '0.2rem 0 0', fontSize: '0.85rem' }}>
+            Interactions to confound with blocks, in factor letters A, B, C … in the order of the factors (or names joined by *), separated by commas. n words give 2^n blocks;
+            every product of them is confounded with blocks too.
+          </p>
+          {generatorError ? <ErrorBox error={generatorError} /> : null}
+        </div>
+      ) : null}
       {hasRuns ? <p className="muted">Committing a new design withdraws planned runs of earlier designs that were never tried; tried runs stay.</p> : null}
-      <ErrorBox error={error} />
+      <ErrorBox error={generatorError && showGenerators ? null : error} />
       {done ? <div className="ok" role="status">{done}</div> : null}
       <button type="submit" className="btn" disabled={busy}>
         {busy ? 'Generating…' : 'Generate and commit design'}

@@ -10,6 +10,7 @@ import { generateDesign, type DesignResult, type DesignSpec } from '@/domain/des
 import { FACTOR_LETTERS } from '@/domain/design/fractional-factorial';
 import { campaignDesignSchema } from '@/server/api/schemas/campaign';
 import { campaignDesignSpec } from '@/server/repos/runs';
+import { blockGeneratorWords, designBody, showsBlockGenerators } from '@/components/DesignPanel';
 
 const cont = (k: number): Factor[] => Array.from({ length: k }, (_, i) => ({ name: `x${i + 1}`, kind: 'continuous', low: 0, high: 10 }));
 
@@ -261,5 +262,25 @@ describe('campaign design route settings', () => {
     expect(generateDesign(spec).diagnostics.blocking!.blocks).toBe(4);
     expect(campaignDesignSpec(cont(5), campaignDesignSchema.parse({ method: 'full-factorial' })).blockGenerators).toBeUndefined();
     expect(campaignDesignSchema.safeParse({ method: 'full-factorial', blockGenerators: 'ABC' }).success).toBe(false);
+  });
+});
+
+describe('design form: the block generator field', () => {
+  const form = { method: 'fractional-factorial', model: '', centerPoints: '', runs: '', seed: '1', blocks: '4', blockGenerators: ' ABC, CDE ;' };
+
+  it('is shown for blocked two-level designs only', () => {
+    expect(showsBlockGenerators(form)).toBe(true);
+    expect(showsBlockGenerators({ ...form, blocks: '', blockGenerators: '' })).toBe(false);
+    expect(showsBlockGenerators({ ...form, blocks: '1', blockGenerators: '' })).toBe(false);
+    expect(showsBlockGenerators({ ...form, method: 'central-composite' })).toBe(false);
+    expect(showsBlockGenerators({ ...form, method: 'full-factorial', blocks: '2', blockGenerators: '' })).toBe(true);
+  });
+
+  it('sends the words split at commas or semicolons, and nothing when the field is hidden or empty', () => {
+    expect(blockGeneratorWords('ABC, CDE;x1*x2*x4 ,')).toEqual(['ABC', 'CDE', 'x1*x2*x4']);
+    expect(designBody(form)).toEqual({ method: 'fractional-factorial', seed: 1, blocks: 4, blockGenerators: ['ABC', 'CDE'] });
+    expect(designBody({ ...form, blockGenerators: '' })).toEqual({ method: 'fractional-factorial', seed: 1, blocks: 4 });
+    expect(designBody({ ...form, method: 'central-composite' })).toEqual({ method: 'central-composite', seed: 1, blocks: 4 });
+    expect(designBody({ ...form, method: 'sobol' })).toEqual({ method: 'sobol', seed: 1 });
   });
 });
