@@ -1,13 +1,15 @@
 'use client';
 /**
- * Import of past trials from a spreadsheet saved as CSV: map each column to a factor, a response or a
- * trial field, give the unit its numbers are in, check the file (a row-by-row report), then import
- * all rows when every row is valid, or, explicitly, only the valid ones.
+ * Import of past trials from a spreadsheet saved as CSV: map each column to a factor, a response, a
+ * standard rig reading or a trial field, give the unit its numbers are in, check the file (a
+ * row-by-row report), then import all rows when every row is valid, or, explicitly, only the valid ones.
+ * A response that stands for a standard reading is offered once, as the response.
  */
 import Papa from 'papaparse';
 import { useState } from 'react';
 import type { ImportReport } from '@/domain/import/trials';
-import { TRIAL_FIELDS } from '@/domain/import/trials';
+import { FAILURE_KINDS } from '@/domain/metrics/standard-readings';
+import { readingTargets, TRIAL_FIELDS } from '@/domain/import/trials';
 import { postJson, type ApiError } from './api-client';
 import { ErrorBox } from './FieldError';
 
@@ -23,6 +25,9 @@ interface ImportAnswer {
   runNumbers: number[];
   unmatched: string[];
 }
+
+/** Mapping values whose column takes a unit. */
+const TAKES_UNIT = /^(factor|response|reading):/;
 
 const norm = (s: string) => s.toLowerCase().replace(/\(.*?\)|\[.*?\]/g, '').replace(/[^a-z0-9]/g, '');
 
@@ -44,10 +49,22 @@ export function ImportTrials({ campaignId, factors, responses }: ImportTrialsPro
   const [message, setMessage] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
 
+  const readings = readingTargets(responses);
+  const standsFor = (name: string) => readings.find((r) => r.response && r.name === name);
   const targets = [
-    ...factors.map((f) => ({ value: `factor:${f.name}`, label: `factor ${f.name}${f.unit ? ` (${f.unit})` : ''}`, key: norm(f.name) })),
-    ...responses.map((r) => ({ value: `response:${r.name}`, label: `response ${r.name}${r.unit ? ` (${r.unit})` : ''}`, key: norm(r.name) })),
-    ...TRIAL_FIELDS.map((t) => ({ value: `field:${t}`, label: `trial ${t}`, key: norm(t) })),
+    ...factors.map((f) => ({ value: `factor:${f.name}`, label: `factor ${f.name}${f.unit ? ` (${f.unit})` : ''}`, keys: [norm(f.name)] })),
+    ...responses.map((r) => {
+      const reading = standsFor(r.name);
+      return {
+        value: `response:${r.name}`,
+        label: `response ${r.name}${r.unit ? ` (${r.unit})` : ''}${reading ? ` = reading ${reading.label.toLowerCase()}` : ''}`,
+        keys: reading ? [norm(r.name), norm(reading.reading), norm(reading.label)] : [norm(r.name)],
+      };
+    }),
+    ...readings
+      .filter((r) => !r.response)
+      .map((r) => ({ value: `reading:${r.reading}`, label: `reading ${r.label.toLowerCase()} (${r.unit})`, keys: [norm(r.reading), norm(r.label)] })),
+    ...TRIAL_FIELDS.map((t) => ({ value: `field:${t}`, label: `trial ${t}`, keys: [norm(t)] })),
   ];
 
   async function choose(file: File | undefined) {
@@ -65,7 +82,7 @@ export function ImportTrials({ campaignId, factors, responses }: ImportTrialsPro
     const m: Record<string, string> = {};
     const u: Record<string, string> = {};
     for (const column of h) {
-      const hit = targets.find((t) => t.key === norm(column));
+      const hit = targets.find((t) => t.keys.includes(norm(column)));
       m[column] = hit?.value ?? '';
       u[column] = unitInHeader(column);
     }
@@ -77,7 +94,7 @@ export function ImportTrials({ campaignId, factors, responses }: ImportTrialsPro
     setError(null);
     setMessage(null);
     setBusy(true);
-    const usedUnits = Object.fromEntries(Object.entries(units).filter(([c, v]) => v.trim() !== '' && /^(factor|response):/.test(mapping[c] ?? '')));
+    const usedUnits = Object.fromEntries(Object.entries(units).filter(([c, v]) => v.trim() !== '' && TAKES_UNIT.test(mapping[c] ?? '')));
     const res = await postJson<ImportAnswer>(`/api/v1/campaigns/${campaignId}/imports`, {
       csv,
       mapping,
@@ -130,12 +147,19 @@ export function ImportTrials({ campaignId, factors, responses }: ImportTrialsPro
                     </select>
                   </td>
                   <td>
-                    <input aria-label={`Column ${column} unit`} value={units[column] ?? ''} onChange={(e) => { setUnits({ ...units, [column]: e.target.value }); setReport(null); }} disabled={!/^(factor|response):/.test(mapping[column] ?? '')} size={6} />
+                    <input aria-label={`Column ${column} unit`} value={units[column] ?? ''} onChange={(e) => { setUnits({ ...units, [column]: e.target.value }); setReport(null); }} disabled={!TAKES_UNIT.test(mapping[column] ?? '')} size={6} />
                   </td>
                 </tr>
               ))}
             </tbody>
           </table>
+        ) : null}
+        {header.length ? (
+          <p className="muted" data-testid="import-readings-hint">
+            The standard readings are checked as at the rig and stored as the rig stores them. A failure reason is one of{' '}
+            {FAILURE_KINDS.filter((k) => k !== 'other').join(', ')}, optionally followed by a colon and words (fell: tipped on landing),
+            or other: words.
+          </p>
         ) : null}
         {header.length ? (
           <p>

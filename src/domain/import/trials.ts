@@ -2,44 +2,71 @@
  * Import of past trials from a spreadsheet exported as CSV: a column mapping, unit conversion and a
  * row-by-row validation report. Nothing is decided about storage here; `trialsToStore` applies the
  * rule "the whole file is valid, or the user explicitly accepts only the valid rows".
+ *
+ * Besides factors, responses and trial fields, a column may hold one of the standard rig readings
+ * (src/domain/metrics/standard-readings.ts), named by its standard name: `apex_height`,
+ * `hops_completed`, `distance_travelled`, `energy_drawn` (or `reading:apex_height` when a name is
+ * ambiguous). A reading is kept exactly as the rig page keeps it: under the campaign response that
+ * stands for it when there is one (then `reading:apex_height` and `response:<that response>` are the
+ * same field), otherwise under its standard name and unit; the values are converted to that unit and
+ * go through the rig's plausibility check (src/domain/metrics/trial-entry.ts).
  */
 import Papa from 'papaparse';
 import { DomainError, invalidInput } from '@/domain/errors';
 import type { Factor, FactorValue, Point, ResponseDefinition } from '@/domain/factors';
-import { conversionFactor } from '@/domain/metrics/units';
+import { STANDARD_READINGS, COUNT_UNIT_WORDS, FAILURE_KINDS, failureReasonText, isCountUnit, readingFields, type FailureKind, type ReadingField, type StandardReading } from '@/domain/metrics/standard-readings';
+import { checkTrialEntry } from '@/domain/metrics/trial-entry';
+import { conversionFactor, knownUnits, unitDefinition } from '@/domain/metrics/units';
 
 /** Trial fields that are neither factors nor responses. */
 export const TRIAL_FIELDS = ['notes', 'startedAt', 'finishedAt', 'passed', 'failureReason', 'operator', 'robot', 'rig', 'runLabel'] as const;
 export type TrialField = (typeof TRIAL_FIELDS)[number];
 
 /**
- * Column name → what it holds: a factor name, a response name or a trial field; prefix with
- * `factor:`, `response:` or `field:` when a name is ambiguous. An empty string ignores the column.
+ * Column name → what it holds: a factor name, a response name, a standard reading's name
+ * (`apex_height`, `hops_completed`, `distance_travelled`, `energy_drawn`) or a trial field; prefix with
+ * `factor:`, `response:`, `reading:` or `field:` when a name is ambiguous. An empty string ignores the column.
  */
 export type ImportMapping = Record<string, string>;
-/** Column name → the unit its numbers are in (converted to the factor's or response's unit). */
+/** Column name → the unit its numbers are in (converted to the factor's, response's or reading's unit). */
 export type ImportUnits = Record<string, string>;
+
+/** A robot of the campaign, for the plausibility checks that need its mass and height. */
+export interface ImportRobot {
+  name: string;
+  massGrams: number;
+  heightMm?: number | null;
+}
 
 export interface ImportOptions {
   /** Current time, ISO 8601: times after it are refused. */
   now?: string;
+  /** The campaign's robots: a row naming one is checked against its mass and height, as at the rig. */
+  robots?: readonly ImportRobot[];
 }
 
 export interface ImportIssue {
   /** CSV column, when the issue concerns one. */
   column?: string;
-  /** Factor, response or trial field concerned. */
+  /** Factor, response, reading (its observation name) or trial field concerned. */
   field: string;
   message: string;
 }
 
 export interface ImportedTrial {
   factors: Point;
+  /** Campaign responses in their units, including one that stands for a standard reading; null when blank. */
   responses: Record<string, number | null>;
+  /**
+   * Standard readings that no campaign response stands for, under their standard names and in their
+   * units (apex_height mm, hops_completed count, distance_travelled mm, energy_drawn mJ); null when blank.
+   */
+  readings: Record<string, number | null>;
   notes?: string;
   startedAt?: string;
   finishedAt?: string;
   passed?: boolean;
+  /** As the rig page stores it: "fell", "broke: words", or the words alone for "other". */
   failureReason?: string;
   operator?: string;
   robot?: string;
@@ -68,22 +95,67 @@ export interface ImportReport {
 type Target =
   | { kind: 'factor'; factor: Factor; scale: number }
   | { kind: 'response'; response: ResponseDefinition; scale: number }
+  /** A standard reading; `field` is where it is stored (a campaign response standing for it, or its standard name). */
+  | { kind: 'reading'; reading: StandardReading; field: ReadingField; scale: number }
   | { kind: 'field'; field: TrialField };
+
+/** Mapping targets a campaign offers for the standard readings: the reading's name, where it is stored. */
+export interface ReadingTarget {
+  /** The standard name a column may be mapped to (`apex_height`, …). */
+  reading: string;
+  label: string;
+  /** Observation the values are stored under, and its unit. */
+  name: string;
+  unit: string;
+  /** True when a campaign response stands for the reading (mapping to that response is the same). */
+  response: boolean;
+}
+
+/** The standard readings as mapping targets of a campaign with these responses. */
+export function readingTargets(responses: readonly { name: string; unit?: string | null }[]): ReadingTarget[] {
+  const { standard } = readingFields(responses);
+  return STANDARD_READINGS.map((s, i) => ({ reading: s.name, label: s.label, name: standard[i]!.name, unit: standard[i]!.unit, response: standard[i]!.response }));
+}
+
+/** How a unit column for a standard reading converts: the scale to the field's unit, or a DomainError naming the column. */
+function readingScale(column: string, unit: string | undefined, reading: StandardReading, field: ReadingField): number {
+  if (!unit) return 1;
+  const stored = field.unit || (reading.siUnit === '' ? 'count' : reading.siUnit);
+  if (reading.siUnit === '') {
+    if (isCountUnit(unit)) return 1;
+    throw invalidInput(column, `column '${column}' holds ${field.name}, a count, and takes no unit; leave its unit empty (or write ${COUNT_UNIT_WORDS.join(', ')}) instead of '${unit}'`);
+  }
+  const quantity = reading.siUnit === 'm' ? 'length' : 'energy';
+  const accepted = knownUnits().filter((u) => unitDefinition(u)?.quantity === quantity);
+  const given = unitDefinition(unit);
+  if (!given || given.quantity !== quantity) {
+    const an = (w: string) => (/^[aeiou]/.test(w) ? `an ${w}` : `a ${w}`);
+    const what = given ? `'${unit}' is ${an(given.quantity)} unit, not ${an(quantity)}` : `'${unit}' is not a known unit`;
+    throw invalidInput(column, `column '${column}' holds ${field.name} (${reading.label.toLowerCase()}, stored in ${stored}): ${what}; use one of ${accepted.join(', ')}, or leave the unit empty when the numbers are in ${stored}`);
+  }
+  return conversionFactor(unit, stored, column);
+}
 
 function resolveTarget(
   column: string, spec: string, factors: readonly Factor[], responses: readonly ResponseDefinition[], units: ImportUnits,
 ): Target {
   const [prefix, rest] = spec.includes(':') ? [spec.slice(0, spec.indexOf(':')), spec.slice(spec.indexOf(':') + 1)] : ['', spec];
   const name = rest.trim();
+  const { standard } = readingFields(responses);
   const factor = prefix === '' || prefix === 'factor' ? factors.find((f) => f.name === name) : undefined;
   const response = prefix === '' || prefix === 'response' ? responses.find((r) => r.name === name) : undefined;
+  const readingIndex = prefix === '' || prefix === 'reading' ? STANDARD_READINGS.findIndex((s) => s.name === name) : -1;
   const field = prefix === '' || prefix === 'field' ? (TRIAL_FIELDS as readonly string[]).includes(name) : false;
-  const matches = [factor, response, field || undefined].filter(Boolean).length;
+  // A response that stands for a standard reading IS that reading: both names lead to the same field.
+  const responseReading = response ? standard.findIndex((f) => f.response && f.name === response.name) : -1;
+  const index = readingIndex >= 0 ? readingIndex : responseReading;
+  const sameField = response !== undefined && readingIndex >= 0 && standard[readingIndex]!.name === response.name;
+  const matches = [factor, response, readingIndex >= 0 || undefined, field || undefined].filter(Boolean).length - (sameField ? 1 : 0);
   if (matches === 0) {
-    const known = [...factors.map((f) => f.name), ...responses.map((r) => r.name), ...TRIAL_FIELDS].join(', ');
-    throw invalidInput(column, `column '${column}' is mapped to '${spec}', which is not a factor, response or trial field; use one of ${known}`);
+    const known = [...factors.map((f) => f.name), ...responses.map((r) => r.name), ...standard.filter((f) => !f.response).map((f) => f.name), ...TRIAL_FIELDS].join(', ');
+    throw invalidInput(column, `column '${column}' is mapped to '${spec}', which is not a factor, response, standard reading or trial field; use one of ${known}`);
   }
-  if (matches > 1) throw invalidInput(column, `column '${column}': '${name}' names more than one thing; write factor:${name}, response:${name} or field:${name}`);
+  if (matches > 1) throw invalidInput(column, `column '${column}': '${name}' names more than one thing; write factor:${name}, response:${name}, reading:${name} or field:${name}`);
   const unit = units[column]?.trim();
   if (factor) {
     if (factor.kind === 'categorical') {
@@ -92,8 +164,39 @@ function resolveTarget(
     }
     return { kind: 'factor', factor, scale: unit && factor.unit ? conversionFactor(unit, factor.unit, column) : 1 };
   }
+  if (index >= 0) {
+    const reading = STANDARD_READINGS[index]!;
+    const target = standard[index]!;
+    return { kind: 'reading', reading, field: target, scale: readingScale(column, unit, reading, target) };
+  }
   if (response) return { kind: 'response', response, scale: unit && response.unit ? conversionFactor(unit, response.unit, column) : 1 };
   return { kind: 'field', field: name as TrialField };
+}
+
+/** Target key: two columns with the same key hold the same thing. */
+function targetKey(target: Target): string {
+  switch (target.kind) {
+    case 'factor':
+      return `factor:${target.factor.name}`;
+    case 'response':
+      return `response:${target.response.name}`;
+    case 'reading':
+      return target.field.response ? `response:${target.field.name}` : `reading:${target.field.name}`;
+    default:
+      return `field:${target.field}`;
+  }
+}
+
+/** A failure reason cell: one of the kinds, optionally with words ("fell: tipped"), or "other: words". */
+function parseFailureReasonCell(cell: string): { reason: string } | { error: string } {
+  const m = /^([a-z]+)\s*(?::\s*([\s\S]*))?$/i.exec(cell.trim());
+  const kind = m?.[1]?.toLowerCase();
+  if (!m || !(FAILURE_KINDS as readonly string[]).includes(kind ?? '')) {
+    return { error: `'${cell}' is not a failure reason; write ${FAILURE_KINDS.filter((k) => k !== 'other').join(', ')} (optionally followed by ': words', e.g. 'fell: tipped on landing') or 'other: words'` };
+  }
+  const words = (m[2] ?? '').trim();
+  if (kind === 'other' && words === '') return { error: `'${cell}' gives no words; write 'other: ' followed by what happened` };
+  return { reason: failureReasonText(kind as FailureKind, words) };
 }
 
 function parseNumberCell(text: string, decimalComma: boolean): number {
@@ -151,7 +254,7 @@ export function validateTrialImport(
     }
     try {
       const target = resolveTarget(column, spec, factors, responses, units);
-      const key = target.kind === 'factor' ? `factor:${target.factor.name}` : target.kind === 'response' ? `response:${target.response.name}` : `field:${target.field}`;
+      const key = targetKey(target);
       const earlier = seen.get(key);
       if (earlier !== undefined) {
         fileErrors.push({ column, field: key, message: `columns '${earlier}' and '${column}' are both mapped to ${key}; map one of them` });
@@ -167,9 +270,20 @@ export function validateTrialImport(
   for (const f of factors) {
     if (!seen.has(`factor:${f.name}`)) fileErrors.push({ field: f.name, message: `factor '${f.name}' has no column; map the column that holds it` });
   }
-  if (!responses.some((r) => seen.has(`response:${r.name}`)) && responses.length > 0) {
-    fileErrors.push({ field: '(mapping)', message: 'no response is mapped; map at least one column to a response' });
+  if (responses.length > 0 && !responses.some((r) => seen.has(`response:${r.name}`)) && ![...seen.keys()].some((k) => k.startsWith('reading:'))) {
+    fileErrors.push({ field: '(mapping)', message: 'no response or standard reading is mapped; map at least one column to a response or a reading' });
   }
+  // Which column holds each observation and trial field, to name it in the plausibility messages.
+  const columnOf = new Map<string, string>();
+  const entered: Record<string, { name: string; unit: string; toSi: number }> = {};
+  for (const { column, target } of columns) {
+    if (target.kind === 'reading') {
+      columnOf.set(target.field.name, column);
+      if (target.field.toSi !== null) entered[target.field.name] = { name: column, unit: units[column]?.trim() || target.field.unit, toSi: target.field.toSi * target.scale };
+    } else if (target.kind === 'response') columnOf.set(target.response.name, column);
+    else if (target.kind === 'field') columnOf.set(target.field, column);
+  }
+  const robots = options.robots ?? [];
   for (const e of parsed.errors.slice(0, 5)) {
     if (e.code === 'UndetectableDelimiter') continue;
     fileErrors.push({ field: '(file)', message: `CSV ${e.type.toLowerCase()} near row ${(e.row ?? 0) + 1}: ${e.message}` });
@@ -184,7 +298,7 @@ export function validateTrialImport(
     const rowLine = line;
     line += 1 + record.reduce((a, cell) => a + (cell.match(/\n/g)?.length ?? 0), 0);
     if (record.every((cell) => cell.trim() === '')) continue;
-    const values: ImportedTrial = { factors: {}, responses: {} };
+    const values: ImportedTrial = { factors: {}, responses: {}, readings: {} };
     const errors: ImportIssue[] = [];
     const warnings: ImportIssue[] = [];
     for (const { index, column, target } of columns) {
@@ -234,6 +348,19 @@ export function validateTrialImport(
           continue;
         }
         values.responses[name] = raw * target.scale;
+      } else if (target.kind === 'reading') {
+        const { name, unit, response } = target.field;
+        const into = response ? values.responses : values.readings;
+        if (cell === '') {
+          into[name] = null;
+          continue;
+        }
+        const raw = parseNumberCell(cell, decimalComma);
+        if (!Number.isFinite(raw)) {
+          errors.push({ column, field: name, message: `'${cell}' is not a number; enter ${name}${unit && unit !== 'count' ? ` in ${units[column]?.trim() || unit}` : ''} or leave the cell blank` });
+          continue;
+        }
+        into[name] = raw * target.scale;
       } else {
         const field = target.field;
         if (cell === '') continue;
@@ -254,16 +381,37 @@ export function validateTrialImport(
             continue;
           }
           values[field] = time.iso;
+        } else if (field === 'failureReason') {
+          const parsed = parseFailureReasonCell(cell);
+          if ('error' in parsed) errors.push({ column, field, message: parsed.error });
+          else values.failureReason = parsed.reason;
         } else {
           values[field] = cell;
         }
       }
     }
-    if (values.startedAt && values.finishedAt && Date.parse(values.finishedAt) < Date.parse(values.startedAt)) {
-      errors.push({ field: 'finishedAt', message: 'finishedAt is before startedAt; swap or correct them' });
+    // The rig's check of the readings and times (pass/fail follows the import's own rules below).
+    const observations: Record<string, number> = {};
+    for (const [name, v] of [...Object.entries(values.responses), ...Object.entries(values.readings)]) if (v !== null) observations[name] = v;
+    const robot = values.robot ? robots.find((x) => x.name === values.robot) ?? robots.find((x) => x.name.toLowerCase() === values.robot!.toLowerCase()) : undefined;
+    const check = checkTrialEntry(
+      responses,
+      observations,
+      { passed: null, failureReason: null, startedAt: values.startedAt ?? null, finishedAt: values.finishedAt ?? null },
+      { now: options.now ?? '', robotMassKg: robot ? robot.massGrams / 1000 : null, robotHeightM: robot?.heightMm ? robot.heightMm / 1000 : null, labels: entered },
+    );
+    const issue = (i: { field: string; message: string }): ImportIssue => {
+      const field = i.field.replace(/^observations\./, '');
+      const column = columnOf.get(field);
+      return column === undefined ? { field, message: i.message } : { column, field, message: i.message };
+    };
+    errors.push(...check.errors.map(issue));
+    warnings.push(...check.warnings.map(issue));
+    if (values.passed === true && values.failureReason) {
+      errors.push({ column: columnOf.get('failureReason'), field: 'failureReason', message: `the trial is marked passed but has the failure reason '${values.failureReason}'; clear the reason or mark the trial failed` });
     }
     if (values.passed === false && !values.failureReason) {
-      warnings.push({ field: 'failureReason', message: 'the trial failed but no failure reason is given' });
+      warnings.push({ column: columnOf.get('passed'), field: 'failureReason', message: 'the trial failed but no failure reason is given' });
     }
     rows.push({ line: rowLine, values, errors, warnings });
   }

@@ -36,6 +36,14 @@ export interface StandardReading {
 /** Units a count may be declared in. */
 const COUNT_UNITS = new Set(['', 'count', '1', 'hops', 'hop', 'n']);
 
+/** The unit words a count (hops completed) may carry: none, or one of these. */
+export const COUNT_UNIT_WORDS: readonly string[] = [...COUNT_UNITS].filter((u) => u !== '');
+
+/** True when `unit` is a unit a count may be declared in (including none). */
+export function isCountUnit(unit: string): boolean {
+  return COUNT_UNITS.has(unit.trim());
+}
+
 export const STANDARD_READINGS: readonly StandardReading[] = [
   { key: 'apexHeight', name: 'apex_height', unit: 'mm', label: 'Apex height', check: 'apexHeightM', siUnit: 'm', pattern: /apex|hop.?height|jump.?height|^height$/i },
   { key: 'hopsCompleted', name: 'hops_completed', unit: 'count', label: 'Hops completed', check: 'hopsCompleted', siUnit: '', pattern: /^hops?(_?count|_?completed)?$|hops.?completed|number.?of.?hops/i },

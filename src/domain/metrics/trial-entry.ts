@@ -19,6 +19,12 @@ export interface EntryContext {
   now: string;
   robotMassKg?: number | null;
   robotHeightM?: number | null;
+  /**
+   * How to name an observation in the messages when it was entered under another name or unit than
+   * it is stored in (a spreadsheet column, say): keyed by observation name; `toSi` takes a value in
+   * `unit` to the SI unit of the check. Without it, messages use the observation's own name and unit.
+   */
+  labels?: Record<string, { name: string; unit: string; toSi: number }>;
 }
 
 export interface EntryIssue {
@@ -44,7 +50,12 @@ export function checkTrialEntry(
       errors.push({ field: `observations.${name}`, message: `"${name}" is not a reading of this campaign; known: ${fields.map((f) => f.name).join(', ')}` });
     }
   }
-  const { readings, fieldOf, labels } = standardReadings(responses, observations);
+  const { readings, fieldOf, labels: own } = standardReadings(responses, observations);
+  const labels = { ...own };
+  for (const key of Object.keys(labels) as (keyof typeof labels)[]) {
+    const entered = context.labels?.[fieldOf[key] ?? ''];
+    if (entered) labels[key] = entered;
+  }
   const check = checkReadings(
     { ...readings, passed: entry.passed ?? null, failureReason: entry.failureReason || null, startedAt: entry.startedAt ?? null, finishedAt: entry.finishedAt ?? null },
     { now: context.now, robotMassKg: context.robotMassKg ?? null, robotHeightM: context.robotHeightM ?? null, labels },

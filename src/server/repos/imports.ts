@@ -2,9 +2,11 @@
  * Import of past trials: every row of the CSV is validated (src/domain/import/trials.ts); nothing is
  * stored unless the whole file is valid or the user explicitly accepted only the valid rows. The
  * stored rows become runs with source 'import' and finished trials with observations of origin
- * 'import', all in one transaction, so a failure part-way stores nothing.
+ * 'import', all in one transaction, so a failure part-way stores nothing. Responses and standard rig
+ * readings become the same observations (names, units) that logging the trial at the rig writes.
  */
 import { codePoint } from '@/domain/factors';
+import { observationField } from '@/domain/metrics/standard-readings';
 import { trialsToStore, validateTrialImport, type ImportReport } from '@/domain/import/trials';
 import type { z } from 'zod';
 import type { trialImportSchema } from '@/server/api/schemas/rig';
@@ -27,7 +29,7 @@ export interface ImportResult {
 export async function importTrials(campaignId: string, input: TrialImportInput, actor = 'local', now = new Date()): Promise<ImportResult> {
   const campaign = await getCampaign(campaignId);
   const factors = domainFactors(campaign);
-  const report = validateTrialImport(input.csv, input.mapping, input.units, factors, campaign.responses, { now: now.toISOString() });
+  const report = validateTrialImport(input.csv, input.mapping, input.units, factors, campaign.responses, { now: now.toISOString(), robots: campaign.robots });
   if (input.dryRun) return { report, stored: 0, runNumbers: [], unmatched: [] };
   const rows = trialsToStore(report, input.acceptValidRowsOnly);
   const unmatched = new Set<string>();
@@ -38,7 +40,9 @@ export async function importTrials(campaignId: string, input: TrialImportInput, 
     return hit?.id ?? null;
   };
   const client = await db();
+  let observationCount = 0;
   const runNumbers = await client.$transaction(async (tx) => {
+    observationCount = 0;
     const max = await tx.run.aggregate({ where: { campaignId }, _max: { runNumber: true, plannedOrder: true } });
     let runNumber = max._max.runNumber ?? 0;
     let plannedOrder = max._max.plannedOrder ?? 0;
@@ -73,10 +77,13 @@ export async function importTrials(campaignId: string, input: TrialImportInput, 
           finishedAt,
         },
       });
-      for (const [name, value] of Object.entries(row.responses)) {
+      // Named and in units as the rig log stores them: a response standing for a standard reading
+      // holds it; the other standard readings keep their fixed names and units.
+      for (const [name, value] of [...Object.entries(row.responses), ...Object.entries(row.readings)]) {
         if (value === null) continue;
-        const unit = campaign.responses.find((r) => r.name === name)?.unit ?? '';
+        const unit = observationField(campaign.responses, name)?.unit ?? '';
         await tx.observation.create({ data: { trialId: trial.id, name, value, unit, origin: 'import' } });
+        observationCount += 1;
       }
       numbers.push(runNumber);
     }
@@ -86,6 +93,7 @@ export async function importTrials(campaignId: string, input: TrialImportInput, 
       stored: rows.length,
       acceptValidRowsOnly: input.acceptValidRowsOnly,
       runNumbers: numbers,
+      observations: observationCount,
     });
     return numbers;
   });

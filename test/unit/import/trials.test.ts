@@ -29,7 +29,7 @@ const header = 'Payload (mg),Gain,Surface,Apex (mm),Energy (mWh),When,OK,Why,Rem
 
 describe('past-trial CSV import: mapping, units, row-by-row report', () => {
   it('accepts a valid file, converting units and normalising levels', () => {
-    const csv = `${header}\n500,20,Grass,180,0.1,2025-11-03T14:05:00Z,yes,,"first try, windy",x\n1500,30,wet glass,95.5,0.2,2025-11-03 15:00,no,slipped,,\n`;
+    const csv = `${header}\n500,20,Grass,180,0.1,2025-11-03T14:05:00Z,yes,,"first try, windy",x\n1500,30,wet glass,95.5,0.2,2025-11-03 15:00,no,other: slipped,,\n`;
     const report = validateTrialImport(csv, mapping, units, factors, responses, { now: '2026-01-01T00:00:00Z' });
     expect(report.fileErrors).toEqual([]);
     expect(report.valid).toBe(true);
@@ -85,7 +85,7 @@ describe('past-trial CSV import: mapping, units, row-by-row report', () => {
     expect(r1.validCount).toBe(0);
     expect(() => trialsToStore(r1, true)).toThrow(/factor 'gain' has no column/);
     const r2 = validateTrialImport(csv, { ...mapping, Remarks: 'comments' }, units, factors, responses);
-    expect(r2.fileErrors[0]!.message).toMatch(/not a factor, response or trial field/);
+    expect(r2.fileErrors[0]!.message).toMatch(/not a factor, response, standard reading or trial field/);
     const r3 = validateTrialImport(csv, mapping, { ...units, 'Apex (mm)': 'g' }, factors, responses);
     expect(r3.fileErrors[0]!.message).toMatch(/mass.*length/);
     const r4 = validateTrialImport(csv, { ...mapping, Ignored: 'apex' }, units, factors, responses);
