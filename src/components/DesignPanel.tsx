@@ -145,7 +145,7 @@ export function DesignPanel({ campaignId, hasRuns }: { campaignId: string; hasRu
             aria-describedby="d-blockgen-help"
           />
           <p id="d-blockgen-help" className="muted" style={{ margin: '0.2rem 0 0', fontSize: '0.85rem' }}>
-            Interactions to confound with blocks, in factor letters A, B, C … in the order of the factors (or names joined by *), separated by commas. n words give 2^n blocks;
+            Interactions to confound with blocks, in factor letters A, B, C … (no I) in the order of the factors, or names joined by *, separated by commas. n words give 2^n blocks;
             every product of them is confounded with blocks too.
           </p>
           {generatorError ? <ErrorBox error={generatorError} /> : null}
