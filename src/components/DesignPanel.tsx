@@ -4,6 +4,7 @@ import Link from 'next/link';
 import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
+import { blockGeneratorWords, showsBlockGenerators } from './block-generators';
 import { ErrorBox } from './FieldError';
 
 const METHODS = [
@@ -18,17 +19,10 @@ const METHODS = [
   ['optimal', 'Optimal design (coordinate exchange)'],
 ] as const;
 
-/** Methods that take a number of blocks, and those (two-level) whose block generators may be named. */
-const BLOCKED = ['full-factorial', 'fractional-factorial', 'central-composite', 'optimal'];
-const TWO_LEVEL = ['full-factorial', 'fractional-factorial'];
+export { blockGeneratorWords, showsBlockGenerators };
 
-/** Block generator words from the text field: separated by commas or semicolons ("ABC, CDE"). */
-export function blockGeneratorWords(text: string): string[] {
-  return text
-    .split(/[,;]/)
-    .map((w) => w.trim())
-    .filter(Boolean);
-}
+/** Methods that take a number of blocks. */
+const BLOCKED = ['full-factorial', 'fractional-factorial', 'central-composite', 'optimal'];
 
 export interface DesignForm {
   method: string;
@@ -38,11 +32,6 @@ export interface DesignForm {
   seed: string;
   blocks: string;
   blockGenerators: string;
-}
-
-/** The generator field is shown once blocks are asked for on a two-level design (or text is already in it). */
-export function showsBlockGenerators(f: Pick<DesignForm, 'method' | 'blocks' | 'blockGenerators'>): boolean {
-  return TWO_LEVEL.includes(f.method) && (Number(f.blocks) > 1 || f.blockGenerators.trim() !== '');
 }
 
 /** The campaign design request of the form: only the fields filled in (and shown), as numbers. */

@@ -3,6 +3,7 @@
 import { usePathname, useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { postJson, type ApiError } from './api-client';
+import { blockGeneratorWords, showsBlockGenerators } from './block-generators';
 import { ErrorBox } from './FieldError';
 import { JobProgress, useJob, type JobState } from './JobProgress';
 import { CorrelationMap, FdsChart } from './plan-charts';
@@ -36,6 +37,8 @@ export interface CandidateSpec {
   blocks?: string;
   /** Optimal designs: 'random' treats blocks as random effects (empty: fixed). */
   blockEffects?: string;
+  /** Two-level designs: the block generators chosen by the engineer ("ABC, CDE"; empty: searched). */
+  blockGenerators?: string;
 }
 
 interface Diagnostics {
@@ -76,6 +79,8 @@ export function candidateBody(c: CandidateSpec): Record<string, unknown> {
   num('wholePlots', 'wholePlots');
   num('seed', 'seed');
   num('blocks', 'blocks');
+  const words = blockGeneratorWords(c.blockGenerators ?? '');
+  if (words.length && showsBlockGenerators({ method: c.method, blocks: c.blocks ?? '', blockGenerators: c.blockGenerators ?? '' })) body.blockGenerators = words;
   if (c.method === 'optimal' && c.blockEffects === 'random' && c.blocks?.trim()) body.blockEffects = 'random';
   if (c.method === 'optimal' && c.starts?.trim()) body.starts = Number(c.starts);
   if (c.criterion) body.criterion = c.criterion;
@@ -253,6 +258,18 @@ export function PlannerPanel({
                     <label htmlFor={`c${n}-blocks`}>Candidate {n} blocks</label>
                     <input id={`c${n}-blocks`} inputMode="numeric" value={c.blocks ?? ''} onChange={(e) => update(i, { blocks: e.target.value })} aria-invalid={err?.field === 'blocks' || err?.field === 'input.blocks' || undefined} />
                   </div>
+                  {showsBlockGenerators({ method: c.method, blocks: c.blocks ?? '', blockGenerators: c.blockGenerators ?? '' }) ? (
+                    <div>
+                      <label htmlFor={`c${n}-bgen`}>Candidate {n} block generators</label>
+                      <input
+                        id={`c${n}-bgen`}
+                        placeholder="searched, or e.g. ABC, CDE"
+                        value={c.blockGenerators ?? ''}
+                        onChange={(e) => update(i, { blockGenerators: e.target.value })}
+                        aria-invalid={err?.field?.startsWith('blockGenerators') || err?.field?.startsWith('input.blockGenerators') || undefined}
+                      />
+                    </div>
+                  ) : null}
                   <div>
                     <label htmlFor={`c${n}-crit`}>Candidate {n} criterion</label>
                     <select id={`c${n}-crit`} value={c.criterion} onChange={(e) => update(i, { criterion: e.target.value })}>

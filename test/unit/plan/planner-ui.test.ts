@@ -22,6 +22,13 @@ describe('planner form to design request', () => {
     expect(candidateBody({ ...base, method: 'optimal', blocks: '3', blockEffects: 'random' })).toEqual({ method: 'optimal', blocks: 3, blockEffects: 'random' });
     expect(candidateBody({ ...base, method: 'optimal', blocks: '', blockEffects: 'random' })).toEqual({ method: 'optimal' });
   });
+  it('sends block generators for a blocked two-level candidate only', () => {
+    const base = { model: '', runs: '', centerPoints: '', wholePlots: '', criterion: '', seed: '' };
+    expect(candidateBody({ ...base, method: 'full-factorial', blocks: '4', blockGenerators: 'ABC, CDE' })).toEqual({ method: 'full-factorial', blocks: 4, blockGenerators: ['ABC', 'CDE'] });
+    expect(candidateBody({ ...base, method: 'fractional-factorial', blocks: '', blockGenerators: 'ABD' })).toEqual({ method: 'fractional-factorial', blockGenerators: ['ABD'] });
+    expect(candidateBody({ ...base, method: 'optimal', blocks: '4', blockGenerators: 'ABC' })).toEqual({ method: 'optimal', blocks: 4 });
+    expect(candidateBody({ ...base, method: 'full-factorial', blocks: '2', blockGenerators: ' , ' })).toEqual({ method: 'full-factorial', blocks: 2 });
+  });
 });
 
 describe('sorting runs inside a whole plot (what the move check must refuse)', () => {
