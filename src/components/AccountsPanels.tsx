@@ -56,33 +56,64 @@ function RoleSelect({ id, value, onChange, invalid }: { id: string; value: Role;
   );
 }
 
-// ---------------------------------------------------------------------------------------------------
-// People
-
-export function PeoplePanel({ initial, me }: { initial: UserView[]; me: string }) {
-  const [users, setUsers] = useState(initial);
+/**
+ * A listed kind (people, tokens): the rows, reloaded from `listPath` after a change, and one change at a
+ * time behind a confirm step (`confirming` holds the row's key), answered by a notice or an error.
+ */
+function useAdminList<T>(initial: T[], listPath: string, rowsOf: (data: Record<string, T[]>) => T[]) {
+  const [rows, setRows] = useState(initial);
   const [confirming, setConfirming] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
   const [listError, setListError] = useState<ApiError | null>(null);
   const [notice, setNotice] = useState<string | null>(null);
 
   const reload = async () => {
-    const r = await callApi<{ users: UserView[] }>('/api/v1/users', 'GET');
-    if (r.ok) setUsers(r.data.users);
+    const r = await callApi<Record<string, T[]>>(listPath, 'GET');
+    if (r.ok) setRows(rowsOf(r.data));
     else setListError(r.error);
   };
 
-  const disable = async (email: string) => {
+  /** POST the change, then say what it did (or show the refusal) and reload the rows. */
+  const change = async <A,>(path: string, body: unknown, said: (answer: A) => string) => {
     setBusy(true);
     setListError(null);
     setNotice(null);
-    const r = await postJson<UserView>('/api/v1/users/disable', { email });
+    const r = await postJson<A>(path, body);
     setBusy(false);
     setConfirming(null);
     if (!r.ok) return setListError(r.error);
-    setNotice(`${r.data.email} is disabled: signed out everywhere, their tokens stop working; the account and its history stay.`);
+    setNotice(said(r.data));
     await reload();
   };
+
+  return { rows, confirming, setConfirming, busy, listError, notice, setNotice, reload, change };
+}
+
+type ListStatus = { busy: boolean; listError: ApiError | null; notice: string | null; setConfirming: (key: string | null) => void };
+
+/** Below a list: the confirm step of the pending change, then its refusal or notice. */
+function ListFooter({ question, yes, list, onYes }: { question: string | null; yes: string; list: ListStatus; onYes: () => void }) {
+  return (
+    <>
+      {question ? <Confirm question={question} yes={yes} busy={list.busy} onYes={onYes} onNo={() => list.setConfirming(null)} /> : null}
+      <ErrorBox error={list.listError} />
+      {list.notice ? (
+        <p className="ok" role="status">
+          {list.notice}
+        </p>
+      ) : null}
+    </>
+  );
+}
+
+// ---------------------------------------------------------------------------------------------------
+// People
+
+export function PeoplePanel({ initial, me }: { initial: UserView[]; me: string }) {
+  const list = useAdminList<UserView>(initial, '/api/v1/users', (d) => d.users!);
+  const { rows: users, confirming, setConfirming } = list;
+  const disable = (email: string) =>
+    list.change<UserView>('/api/v1/users/disable', { email }, (u) => `${u.email} is disabled: signed out everywhere, their tokens stop working; the account and its history stay.`);
 
   return (
     <section className="panel" data-testid="people">
@@ -125,25 +156,16 @@ export function PeoplePanel({ initial, me }: { initial: UserView[]; me: string }
         </table>
       </div>
       {users.length === 0 ? <p className="muted">No accounts yet.</p> : null}
-      {confirming ? (
-        <Confirm
-          question={`Disable ${confirming}? They are signed out everywhere and their tokens stop working; the account and its history stay.`}
-          yes="Yes, disable"
-          busy={busy}
-          onYes={() => disable(confirming)}
-          onNo={() => setConfirming(null)}
-        />
-      ) : null}
-      <ErrorBox error={listError} />
-      {notice ? (
-        <p className="ok" role="status">
-          {notice}
-        </p>
-      ) : null}
+      <ListFooter
+        list={list}
+        question={confirming ? `Disable ${confirming}? They are signed out everywhere and their tokens stop working; the account and its history stay.` : null}
+        yes="Yes, disable"
+        onYes={() => confirming && disable(confirming)}
+      />
       <AddPersonForm
         onAdded={async (u) => {
-          setNotice(`${u.email} can now sign in with the role ${u.role}.`);
-          await reload();
+          list.setNotice(`${u.email} can now sign in with the role ${u.role}.`);
+          await list.reload();
         }}
       />
     </section>
@@ -215,29 +237,9 @@ function AddPersonForm({ onAdded }: { onAdded: (u: UserView) => void | Promise<v
 type Created = TokenView & { token: string };
 
 export function TokensPanel({ initial }: { initial: TokenView[] }) {
-  const [tokens, setTokens] = useState(initial);
-  const [confirming, setConfirming] = useState<string | null>(null);
-  const [busy, setBusy] = useState(false);
-  const [listError, setListError] = useState<ApiError | null>(null);
-  const [notice, setNotice] = useState<string | null>(null);
-
-  const reload = async () => {
-    const r = await callApi<{ tokens: TokenView[] }>('/api/v1/tokens', 'GET');
-    if (r.ok) setTokens(r.data.tokens);
-    else setListError(r.error);
-  };
-
-  const revoke = async (name: string) => {
-    setBusy(true);
-    setListError(null);
-    setNotice(null);
-    const r = await postJson<TokenView>('/api/v1/tokens/revoke', { name });
-    setBusy(false);
-    setConfirming(null);
-    if (!r.ok) return setListError(r.error);
-    setNotice(`The token ${r.data.name} is revoked: requests that send it are refused.`);
-    await reload();
-  };
+  const list = useAdminList<TokenView>(initial, '/api/v1/tokens', (d) => d.tokens!);
+  const { rows: tokens, confirming, setConfirming } = list;
+  const revoke = (name: string) => list.change<TokenView>('/api/v1/tokens/revoke', { name }, (t) => `The token ${t.name} is revoked: requests that send it are refused.`);
 
   return (
     <section className="panel" data-testid="tokens">
@@ -282,22 +284,13 @@ export function TokensPanel({ initial }: { initial: TokenView[] }) {
         </table>
       </div>
       {tokens.length === 0 ? <p className="muted">No API tokens yet.</p> : null}
-      {confirming ? (
-        <Confirm
-          question={`Revoke the token ${confirming}? Scripts that send it are refused from now on; this cannot be undone.`}
-          yes="Yes, revoke"
-          busy={busy}
-          onYes={() => revoke(confirming)}
-          onNo={() => setConfirming(null)}
-        />
-      ) : null}
-      <ErrorBox error={listError} />
-      {notice ? (
-        <p className="ok" role="status">
-          {notice}
-        </p>
-      ) : null}
-      <CreateTokenForm onCreated={reload} />
+      <ListFooter
+        list={list}
+        question={confirming ? `Revoke the token ${confirming}? Scripts that send it are refused from now on; this cannot be undone.` : null}
+        yes="Yes, revoke"
+        onYes={() => confirming && revoke(confirming)}
+      />
+      <CreateTokenForm onCreated={list.reload} />
     </section>
   );
 }
