@@ -6,28 +6,16 @@
  * is stored; the analysis fits an imported reading as it fits a logged one.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DomainError } from '@/domain/errors';
-import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { trialImportSchema, trialLogSchema } from '@/server/api/schemas/rig';
 import { closeDb, db } from '@/server/db/client';
 import { campaignData, fitCampaign } from '@/server/repos/analyses';
-import { createCampaign } from '@/server/repos/campaigns';
 import { importTrials } from '@/server/repos/imports';
 import { logTrial } from '@/server/repos/rig-log';
-import { commitDesign, listRuns } from '@/server/repos/runs';
+import { listRuns } from '@/server/repos/runs';
 import { freshDatabase } from './database';
+import { rejection, rigCampaign } from './rig-campaign';
 
 const NOW = new Date('2026-03-02T12:00:00Z');
-
-async function rejection(p: Promise<unknown>): Promise<DomainError> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof DomainError) return e;
-    throw e;
-  }
-  throw new Error('expected a DomainError');
-}
 
 describe('import of past trials with the standard rig readings', () => {
   let campaignId = '';
@@ -37,24 +25,16 @@ describe('import of past trials with the standard rig readings', () => {
   beforeAll(async () => {
     await freshDatabase();
     // An invented campaign: the apex is declared as a response in cm; hops, distance and energy are not.
-    const input = campaignCreateSchema.parse({
+    ({ campaignId, robotId, rigId } = await rigCampaign({
       name: 'Imported readings campaign',
-      factors: [
-        { name: 'payload', kind: 'continuous', unit: 'g', low: 0, high: 1.8 },
-        { name: 'gain', kind: 'discrete', values: [0.5, 1, 2] },
-      ],
       responses: [
         { name: 'apex', unit: 'cm', goal: 'maximize' },
         { name: 'landing_score', unit: '', goal: 'maximize' },
       ],
-      robots: [{ name: 'Hopper T', massGrams: 1, heightMm: 45 }],
-      rigs: [{ name: 'Bench Q', timeZone: 'UTC' }],
-    });
-    const c = await createCampaign(input, 'tester');
-    campaignId = c.id;
-    robotId = c.robots[0]!.id;
-    rigId = c.rigs[0]!.id;
-    await commitDesign(campaignId, { method: 'full-factorial', model: 'main-effects', seed: 3 }, 'tester');
+      robot: 'Hopper T',
+      rig: { name: 'Bench Q', timeZone: 'UTC' },
+      seed: 3,
+    }));
   });
   afterAll(async () => {
     await closeDb();

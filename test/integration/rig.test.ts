@@ -5,33 +5,22 @@
  * all-or-nothing import of past trials.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DomainError } from '@/domain/errors';
 import { STANDARD_GRAVITY } from '@/domain/metrics/ballistics';
-import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { trialImportSchema, trialLogSchema } from '@/server/api/schemas/rig';
 import { closeDb, db } from '@/server/db/client';
-import { createCampaign, getCampaign } from '@/server/repos/campaigns';
+import { getCampaign } from '@/server/repos/campaigns';
 import { campaignData } from '@/server/repos/analyses';
 import { importTrials } from '@/server/repos/imports';
 import { getTrial, logTrial } from '@/server/repos/rig-log';
-import { commitDesign, listRuns } from '@/server/repos/runs';
+import { listRuns } from '@/server/repos/runs';
 import { storeMcapTrack, storeTrack } from '@/server/repos/tracks';
 import { McapWriter } from '@mcap/core';
 import { MemoryWritable } from '../unit/tracks/mcap-build';
 import { amendTrial } from '@/server/repos/trials';
 import { freshDatabase } from './database';
+import { rejection, rigCampaign } from './rig-campaign';
 
 const NOW = new Date('2026-03-02T12:00:00Z');
-
-async function rejection(p: Promise<unknown>): Promise<DomainError> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof DomainError) return e;
-    throw e;
-  }
-  throw new Error('expected a DomainError');
-}
 
 /**
  * A track of `hops` ballistic hops of apex `apex` m at 1 kHz in mm and ms, with 0.1 s stances and a
@@ -95,27 +84,18 @@ describe('rig page server side on a real database', () => {
 
   beforeAll(async () => {
     await freshDatabase();
-    const input = campaignCreateSchema.parse({
+    ({ campaignId, robotId, rigId, runIds } = await rigCampaign({
       name: 'Rig page campaign',
-      factors: [
-        { name: 'payload', kind: 'continuous', unit: 'g', low: 0, high: 1.8 },
-        { name: 'gain', kind: 'discrete', values: [0.5, 1, 2] },
-      ],
       responses: [
         { name: 'apex_height', unit: 'mm', goal: 'maximize' },
         { name: 'energy', unit: 'mJ', goal: 'minimize' },
         { name: 'hop_length', unit: 'mm', goal: 'maximize' },
         { name: 'cost_of_transport', goal: 'minimize' },
       ],
-      robots: [{ name: 'R1', massGrams: 1, heightMm: 45 }],
-      rigs: [{ name: 'Bench A', timeZone: 'Europe/Berlin', startTime: '08:00', endTime: '18:00' }],
-    });
-    const c = await createCampaign(input, 'tester');
-    campaignId = c.id;
-    robotId = c.robots[0]!.id;
-    rigId = c.rigs[0]!.id;
-    await commitDesign(campaignId, { method: 'full-factorial', model: 'main-effects', seed: 3 }, 'tester');
-    runIds = (await listRuns(campaignId)).map((r) => r.id);
+      robot: 'R1',
+      rig: { name: 'Bench A', timeZone: 'Europe/Berlin', startTime: '08:00', endTime: '18:00' },
+      seed: 3,
+    }));
   });
   afterAll(async () => {
     await closeDb();

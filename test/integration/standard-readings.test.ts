@@ -6,28 +6,16 @@
  * the analysis can fit a standard reading as a response.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DomainError } from '@/domain/errors';
-import { campaignCreateSchema } from '@/server/api/schemas/campaign';
 import { trialLogSchema } from '@/server/api/schemas/rig';
 import { closeDb, db } from '@/server/db/client';
 import { campaignData, fitCampaign } from '@/server/repos/analyses';
-import { createCampaign } from '@/server/repos/campaigns';
 import { logTrial } from '@/server/repos/rig-log';
-import { commitDesign, listRuns } from '@/server/repos/runs';
+import { listRuns } from '@/server/repos/runs';
 import { finishTrial, startTrial } from '@/server/repos/trials';
 import { freshDatabase } from './database';
+import { rejection, rigCampaign } from './rig-campaign';
 
 const NOW = new Date('2026-03-02T12:00:00Z');
-
-async function rejection(p: Promise<unknown>): Promise<DomainError> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof DomainError) return e;
-    throw e;
-  }
-  throw new Error('expected a DomainError');
-}
 
 describe('standard rig readings on a real database', () => {
   let campaignId = '';
@@ -38,25 +26,16 @@ describe('standard rig readings on a real database', () => {
   beforeAll(async () => {
     await freshDatabase();
     // The campaign declares an apex response in cm and one response of its own; no hops, distance or energy.
-    const input = campaignCreateSchema.parse({
+    ({ campaignId, robotId, rigId, runIds } = await rigCampaign({
       name: 'Standard readings campaign',
-      factors: [
-        { name: 'payload', kind: 'continuous', unit: 'g', low: 0, high: 1.8 },
-        { name: 'gain', kind: 'discrete', values: [0.5, 1, 2] },
-      ],
       responses: [
         { name: 'apex', unit: 'cm', goal: 'maximize' },
         { name: 'landing_score', unit: '', goal: 'maximize' },
       ],
-      robots: [{ name: 'R1', massGrams: 1, heightMm: 45 }],
-      rigs: [{ name: 'Bench A', timeZone: 'UTC' }],
-    });
-    const c = await createCampaign(input, 'tester');
-    campaignId = c.id;
-    robotId = c.robots[0]!.id;
-    rigId = c.rigs[0]!.id;
-    await commitDesign(campaignId, { method: 'full-factorial', model: 'main-effects', seed: 5 }, 'tester');
-    runIds = (await listRuns(campaignId)).map((r) => r.id);
+      robot: 'R1',
+      rig: { name: 'Bench A', timeZone: 'UTC' },
+      seed: 5,
+    }));
   });
   afterAll(async () => {
     await closeDb();
