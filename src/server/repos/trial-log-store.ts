@@ -229,7 +229,8 @@ const pgTime = (n: number) => `($${n}::timestamptz AT TIME ZONE 'UTC')::timestam
  * The trial is inserted only when no trial holds the key, the run is in the campaign and (without
  * `repeat`) the run has no finished trial yet; observations and the audit event only with the trial.
  * A copy of the entry inserting the same key at the same moment makes the insert do nothing (the
- * unique index on the key waits for it). The row answers which of these held.
+ * unique index on the key waits for it). The inserts of the WITH parts run whether or not the final
+ * SELECT reads them; its one row answers which of the conditions held and whether the trial went in.
  */
 const PG_LOG_STATEMENT = `
 WITH known AS (
@@ -252,26 +253,20 @@ WITH known AS (
   INSERT INTO "Observation" ("id", "trialId", "name", "value", "unit", "origin")
   SELECT o.id, trial."id", o.name, o.value, o.unit, 'typed'
   FROM trial, unnest($17::text[], $18::text[], $19::double precision[], $20::text[]) AS o(id, name, value, unit)
-  RETURNING 1
 ), event AS (
   INSERT INTO "AuditEvent" ("id", "at", "actor", "action", "entity", "entityId", "beforeJson", "afterJson")
   SELECT $21, ${pgTime(15)}, $22, $23, 'trial', trial."id", NULL, $24 FROM trial
-  RETURNING 1
 )
 SELECT EXISTS (SELECT 1 FROM known) AS "known",
   EXISTS (SELECT 1 FROM run) AS "runFound",
   (SELECT "id" FROM earlier) AS "earlierId",
-  (SELECT count(*) FROM trial)::integer AS "stored",
-  (SELECT count(*) FROM observations)::integer AS "observations",
-  (SELECT count(*) FROM event)::integer AS "events"`;
+  (SELECT count(*) FROM trial)::integer AS "stored"`;
 
 interface PgLogRow {
   known: boolean;
   runFound: boolean;
   earlierId: string | null;
   stored: number;
-  observations: number;
-  events: number;
 }
 
 /**
