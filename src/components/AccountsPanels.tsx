@@ -89,6 +89,23 @@ function useAdminList<T>(initial: T[], listPath: string, rowsOf: (data: Record<s
   return { rows, confirming, setConfirming, busy, listError, notice, setNotice, reload, change };
 }
 
+/** A row's last cell: when it was ended (disabled, revoked), or the button that asks to end it ("—" when `locked`). */
+function EndCell({ endedAt, action, rowKey, confirming, onAsk, locked = false }: { endedAt: string | null; action: string; rowKey: string; confirming: string | null; onAsk: (key: string) => void; locked?: boolean }) {
+  return (
+    <td style={dateCell}>
+      {endedAt ? (
+        when(endedAt)
+      ) : locked ? (
+        '—'
+      ) : (
+        <button type="button" className="btn secondary" disabled={confirming === rowKey} onClick={() => onAsk(rowKey)} aria-label={`${action} ${rowKey}`}>
+          {action}
+        </button>
+      )}
+    </td>
+  );
+}
+
 type ListStatus = { busy: boolean; listError: ApiError | null; notice: string | null; setConfirming: (key: string | null) => void };
 
 /** Below a list: the confirm step of the pending change, then its refusal or notice. */
@@ -139,17 +156,7 @@ export function PeoplePanel({ initial, me }: { initial: UserView[]; me: string }
                 <td>{u.name}</td>
                 <td>{u.role}</td>
                 <td style={dateCell}>{when(u.createdAt)}</td>
-                <td style={dateCell}>
-                  {u.disabledAt ? (
-                    when(u.disabledAt)
-                  ) : u.email === me ? (
-                    '—'
-                  ) : (
-                    <button type="button" className="btn secondary" disabled={confirming === u.email} onClick={() => setConfirming(u.email)} aria-label={`Disable ${u.email}`}>
-                      Disable
-                    </button>
-                  )}
-                </td>
+                <EndCell endedAt={u.disabledAt} action="Disable" rowKey={u.email} confirming={confirming} onAsk={setConfirming} locked={u.email === me} />
               </tr>
             ))}
           </tbody>
@@ -269,15 +276,7 @@ export function TokensPanel({ initial }: { initial: TokenView[] }) {
                 <td style={dateCell}>{when(t.createdAt)}</td>
                 <td style={dateCell}>{t.expiresAt ? when(t.expiresAt) : 'never'}</td>
                 <td style={dateCell}>{t.lastUsedAt ? when(t.lastUsedAt) : 'never'}</td>
-                <td style={dateCell}>
-                  {t.revokedAt ? (
-                    when(t.revokedAt)
-                  ) : (
-                    <button type="button" className="btn secondary" disabled={confirming === t.name} onClick={() => setConfirming(t.name)} aria-label={`Revoke ${t.name}`}>
-                      Revoke
-                    </button>
-                  )}
-                </td>
+                <EndCell endedAt={t.revokedAt} action="Revoke" rowKey={t.name} confirming={confirming} onAsk={setConfirming} />
               </tr>
             ))}
           </tbody>

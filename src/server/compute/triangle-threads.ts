@@ -29,7 +29,6 @@ const HELPER_WAIT_MS = 2_000;
 interface HelperState {
   worker: Worker | null;
   ready: boolean;
-  failed: boolean;
   loading: Promise<void>;
 }
 
@@ -101,14 +100,14 @@ export function startAnalysisThreads(env: Record<string, string | undefined> = p
     if (existing.ready) install(existing);
     return existing.loading;
   }
-  const helper: HelperState = { worker: null, ready: false, failed: false, loading: Promise.resolve() };
+  const helper: HelperState = { worker: null, ready: false, loading: Promise.resolve() };
   globalForThreads.saltusTriangleHelper = helper;
   helper.loading = new Promise((resolve) => {
     let worker: Worker;
     try {
       worker = new ThreadWorker(helperFile(env));
     } catch {
-      helper.failed = true;
+      // No thread could be made here: fits stay on this thread.
       resolve();
       return;
     }
@@ -124,7 +123,6 @@ export function startAnalysisThreads(env: Record<string, string | undefined> = p
     worker.once('error', (e) => {
       // The helper could not load (or died): fits stay on this thread.
       console.error('[saltus] the analysis helper thread stopped; large fits use one thread', e);
-      helper.failed = true;
       retire(helper);
       resolve();
     });
