@@ -79,10 +79,15 @@ export function triangleOnThreads(worker: Worker | null, x: Float64Array, y: Flo
     if (left <= 0) break;
     Atomics.wait(ctrl, ACTIVE, 1, left);
   }
+  // The blocks finished so far, copied: a helper past the deadline may still be writing into its block's
+  // slot of `out`, so a block it left unfinished is formed again in the copy, never in the shared slot.
+  // The done flags are read before the copy, so a block counted finished was whole when copied.
+  const finished = Array.from({ length: blocks }, (_, b) => Atomics.load(done, b) === 1);
+  const formed = out.slice();
   for (let b = 0; b < blocks; b++) {
-    if (Atomics.load(done, b) !== 1) blockTriangle(xs, ys, n, p, b, out.subarray(b * qq, (b + 1) * qq));
+    if (!finished[b]) blockTriangle(xs, ys, n, p, b, formed.subarray(b * qq, (b + 1) * qq));
   }
-  return foldTriangles(out, blocks, p);
+  return foldTriangles(formed, blocks, p);
 }
 
 /**

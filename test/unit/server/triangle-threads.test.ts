@@ -87,6 +87,34 @@ describe('least-squares triangle on two threads', () => {
     }
   });
 
+  it('keeps a late helper from spoiling the answer: a block it is still writing is formed again apart', async () => {
+    // This helper claims one block and then keeps writing NaN into that block's slot for a second.
+    const late = new Worker(
+      `const { parentPort } = require('node:worker_threads');
+       parentPort.on('message', ({ ctrl, out, p, blocks }) => {
+         Atomics.store(ctrl, 1, 1);
+         const b = Atomics.add(ctrl, 0, 1);
+         parentPort.postMessage(b);
+         if (b >= blocks) return;
+         const qq = (p + 1) * (p + 1);
+         const until = Date.now() + 1000;
+         while (Date.now() < until) out.fill(NaN, b * qq, (b + 1) * qq);
+       });
+       parentPort.postMessage('ready');`,
+      { eval: true },
+    );
+    try {
+      await new Promise((resolve) => late.once('message', resolve));
+      for (let attempt = 0; attempt < 3; attempt++) {
+        const t = triangleOnThreads(late, x, y, N, P, 100);
+        expect(sameBits(t, sequentialBlockTriangle(x, y, N, P))).toBe(true);
+        await new Promise((resolve) => setTimeout(resolve, 1100));
+      }
+    } finally {
+      await late.terminate();
+    }
+  });
+
   it('stays on one thread when told to (SALTUS_ANALYSIS_THREADS=1) and after the helper stops', async () => {
     await startAnalysisThreads({ SALTUS_ANALYSIS_THREADS: '1' });
     expect(sameBits(largeTriangle(x, y, N, P), sequentialBlockTriangle(x, y, N, P))).toBe(true);
